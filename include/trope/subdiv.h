@@ -1,0 +1,45 @@
+/* trope/subdiv.h — the regular subdivision: every lower face of every dimension.
+ *
+ * Invariants (after tp_subdiv_build): cells are sorted by (dim descending, point list
+ * ascending lexicographically); each cell's point list is ascending; `lower` and
+ * `sides` list, ascending, the hull facets (H.lower / H.sides) that contain the cell.
+ * Cells of dimension 0 are the used vertices of the subdivision.
+ */
+#ifndef TROPE_SUBDIV_H
+#define TROPE_SUBDIV_H
+
+#include "trope/hull.h"
+
+typedef struct {
+    int dim;             /* affine dimension of the cell's points */
+    size_t npts;
+    size_t *pts;         /* points lying on the face, ascending */
+    size_t nlower;
+    size_t *lower;       /* indices into hull.lower of facets containing the face */
+    size_t nsides;
+    size_t *sides;       /* indices into hull.sides of Newton facets containing it */
+} tp_subdiv_cell;
+
+typedef struct {
+    tp_hull hull;        /* owned */
+    size_t ncells;
+    tp_subdiv_cell *cells;
+    size_t nunused;
+    size_t *unused;      /* points on no lower face (above the hull, or dup), ascending */
+} tp_subdiv;
+
+void tp_subdiv_init(tp_subdiv *S);
+void tp_subdiv_clear(tp_subdiv *S);
+
+/* tp_subdiv_build: run the hull engine on P and enumerate all lower faces.
+ *   returns TP_OK, or the hull's error; TP_ENOMEM. Cost: output-sensitive, each face is
+ *   found from its parent faces through a point -> facet index. */
+TP_MUST_CHECK tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P,
+                                        tp_engine engine, tp_error *err);
+
+/* tp_subdiv_check: every cell's points are affinely of dimension `dim`, lie on every
+ * listed lower facet, and cells are sorted. returns TP_OK or TP_EINTERNAL. */
+TP_MUST_CHECK tp_status tp_subdiv_check(const tp_subdiv *S, const tp_points *P,
+                                        tp_error *err);
+
+#endif

@@ -1,0 +1,48 @@
+/* trope/trop.h — the whole tropicalize pipeline in one object.
+ *
+ * tp_trop owns everything from the points on: points -> hull -> subdivision -> complex.
+ * Writers (write.h) read a tp_trop and never compute geometry.
+ */
+#ifndef TROPE_TROP_H
+#define TROPE_TROP_H
+
+#include "trope/complex.h"
+#include "trope/field.h"
+#include "trope/points.h"
+#include "trope/poly.h"
+#include "trope/subdiv.h"
+
+typedef struct {
+    bool max;            /* max convention */
+    tp_engine engine;
+} tp_trop_options;
+
+typedef struct {
+    bool has_field;      /* false for --points input */
+    tp_field field;
+    size_t nvars;
+    char **vars;         /* owned copies */
+    bool has_poly;
+    tp_poly poly;        /* owned copy of the input polynomial (terms), if has_poly */
+    tp_points points;
+    tp_subdiv subdiv;
+    tp_complex complex;
+    bool max;
+    char source[256];    /* input name */
+} tp_trop;
+
+void tp_trop_init(tp_trop *T);
+void tp_trop_clear(tp_trop *T);
+
+/* tp_trop_from_poly: run the pipeline on polynomial `index` of `in`.
+ *   returns TP_OK or the first failing stage's status. */
+TP_MUST_CHECK tp_status tp_trop_from_poly(tp_trop *T, const tp_input *in, size_t index,
+                                          const tp_trop_options *opt, tp_error *err);
+
+/* tp_trop_from_points: run the pipeline on a point set (moved into T: P is left
+ *   empty). With opt->max the heights are read as max-convention coefficients
+ *   (negated before the lower hull). */
+TP_MUST_CHECK tp_status tp_trop_from_points(tp_trop *T, tp_points *P,
+                                            const tp_trop_options *opt, tp_error *err);
+
+#endif

@@ -1,0 +1,913 @@
+/* complex.c — the tropical hypersurface dual to the regular subdivision.
+ *
+ * For a subdivision cell sigma of dimension k >= 1 the dual cell has dimension n - k:
+ * its vertices are the normals of the lower facets containing sigma, its rays the
+ * inner normals of the Newton polytope facets containing sigma, and it contains the
+ * lineality space L. Top cells (k = 1) carry the lattice length of their dual edge as
+ * weight.
+ *
+ * Balancing (computed, not assumed): at a codimension-2 cell C (dual to a 2-cell
+ * sigma), let W be the linear span of C. The adjacent top cells C_e (e an edge of
+ * sigma) give primitive generators u_e of the rank-one lattice (Z^n ∩ span C_e) /
+ * (Z^n ∩ W). With Phi an integer basis of the saturated lattice W^perp ∩ Z^n (two
+ * vectors), x -> (phi_1.x, phi_2.x) identifies Z^n / (Z^n ∩ W) with Z^2, so u_e is
+ * the primitive integer vector along Phi(q_e - p), q_e and p relative interior
+ * points of C_e and C. The cell is balanced when sum_e weight_e * u_e = 0.
+ */
+#include "trope/complex.h"
+
+#include <stdarg.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "trope/poly.h"
+
+void tp_complex_init(tp_complex *C)
+{
+    memset(C, 0, sizeof *C);
+    C->dim = -1;
+    C->genus = -1;
+    C->smooth = -1;
+}
+
+static void zvec_free(mpz_t *v, size_t len)
+{
+    if (!v)
+        return;
+    for (size_t i = 0; i < len; i++)
+        mpz_clear(v[i]);
+    free(v);
+}
+
+static void qvec_free(mpq_t *v, size_t len)
+{
+    if (!v)
+        return;
+    for (size_t i = 0; i < len; i++)
+        mpq_clear(v[i]);
+    free(v);
+}
+
+static mpz_t *zvec_new(size_t len)
+{
+    mpz_t *v = malloc((len ? len : 1) * sizeof *v);
+    if (v)
+        for (size_t i = 0; i < len; i++)
+            mpz_init(v[i]);
+    return v;
+}
+
+static mpq_t *qvec_new(size_t len)
+{
+    mpq_t *v = malloc((len ? len : 1) * sizeof *v);
+    if (v)
+        for (size_t i = 0; i < len; i++)
+            mpq_init(v[i]);
+    return v;
+}
+
+void tp_complex_clear(tp_complex *C)
+{
+    for (size_t i = 0; i < C->ncells; i++) {
+        tp_complex_cell *c = &C->cells[i];
+        free(c->verts);
+        free(c->rays);
+        mpz_clear(c->weight);
+        mpz_clear(c->mult);
+        qvec_free(c->interior, C->n);
+        free(c->initial_form);
+    }
+    free(C->cells);
+    zvec_free(C->lin, C->nlin * C->n);
+    qvec_free(C->verts, C->nverts * C->n);
+    zvec_free(C->rays, C->nrays * C->n);
+    free(C->f_vector);
+    for (size_t i = 0; i < C->nraydeg; i++) {
+        zvec_free(C->raydeg[i].dir, C->n);
+        mpz_clear(C->raydeg[i].weight);
+    }
+    free(C->raydeg);
+    tp_complex_init(C);
+}
+
+/* ---- small exact helpers -------------------------------------------------------- */
+
+static void make_primitive(mpz_t *v, size_t n)
+{
+    mpz_t g;
+    mpz_init(g);
+    for (size_t j = 0; j < n; j++)
+        mpz_gcd(g, g, v[j]);
+    if (mpz_sgn(g) != 0 && mpz_cmp_ui(g, 1) != 0)
+        for (size_t j = 0; j < n; j++)
+            mpz_divexact(v[j], v[j], g);
+    mpz_clear(g);
+}
+
+/* Primitive integer vector along a rational vector (zero stays zero). */
+static void primitive_of_q(mpz_t *out, mpq_t *v, size_t n)
+{
+    mpz_t den, t;
+    mpz_inits(den, t, NULL);
+    mpz_set_ui(den, 1);
+    for (size_t j = 0; j < n; j++)
+        mpz_lcm(den, den, mpq_denref(v[j]));
+    for (size_t j = 0; j < n; j++) {
+        mpz_divexact(t, den, mpq_denref(v[j]));
+        mpz_mul(out[j], mpq_numref(v[j]), t);
+    }
+    make_primitive(out, n);
+    mpz_clears(den, t, NULL);
+}
+
+/* Integer kernel {x in Z^n : A x = 0} of the r x n integer matrix A, by unimodular
+ * column operations; writes the basis (rows of length n) into *K, returns its size,
+ * or SIZE_MAX on no memory. */
+static size_t int_kernel(mpz_t *A, size_t r, size_t n, mpz_t **K)
+{
+    mpz_t *U = zvec_new(n * n);   /* U[j*n + i]: column j of U, entry i */
+    mpz_t *row = zvec_new(n);
+    if (!U || !row) {
+        zvec_free(U, n * n);
+        zvec_free(row, n);
+        return SIZE_MAX;
+    }
+    for (size_t j = 0; j < n; j++)
+        mpz_set_ui(U[j * n + j], 1);
+    mpz_t g, s, t, a, b, x, y;
+    mpz_inits(g, s, t, a, b, x, y, NULL);
+    size_t c = 0;
+    for (size_t i = 0; i < r && c < n; i++) {
+        for (size_t j = c; j < n; j++) {
+            mpz_set_ui(row[j], 0);
+            for (size_t k = 0; k < n; k++)
+                mpz_addmul(row[j], A[i * n + k], U[j * n + k]);
+        }
+        /* Move a nonzero entry to column c. */
+        size_t nz = n;
+        for (size_t j = c; j < n; j++)
+            if (mpz_sgn(row[j]) != 0) {
+                nz = j;
+                break;
+            }
+        if (nz == n)
+            continue;
+        if (nz != c) {
+            for (size_t k = 0; k < n; k++)
+                mpz_swap(U[c * n + k], U[nz * n + k]);
+            mpz_swap(row[c], row[nz]);
+        }
+        for (size_t j = c + 1; j < n; j++) {
+            if (mpz_sgn(row[j]) == 0)
+                continue;
+            mpz_gcdext(g, s, t, row[c], row[j]);
+            mpz_divexact(a, row[c], g);
+            mpz_divexact(b, row[j], g);
+            for (size_t k = 0; k < n; k++) {
+                /* col_c' = s col_c + t col_j ; col_j' = a col_j - b col_c */
+                mpz_mul(x, s, U[c * n + k]);
+                mpz_addmul(x, t, U[j * n + k]);
+                mpz_mul(y, a, U[j * n + k]);
+                mpz_submul(y, b, U[c * n + k]);
+                mpz_set(U[c * n + k], x);
+                mpz_set(U[j * n + k], y);
+            }
+            mpz_set(row[c], g);
+            mpz_set_ui(row[j], 0);
+        }
+        c++;
+    }
+    mpz_clears(g, s, t, a, b, x, y, NULL);
+    size_t dimk = n - c;
+    *K = zvec_new(dimk * n);
+    if (!*K) {
+        zvec_free(U, n * n);
+        zvec_free(row, n);
+        return SIZE_MAX;
+    }
+    for (size_t j = 0; j < dimk; j++)
+        for (size_t k = 0; k < n; k++)
+            mpz_set((*K)[j * n + k], U[(c + j) * n + k]);
+    zvec_free(U, n * n);
+    zvec_free(row, n);
+    return dimk;
+}
+
+/* gcd of the 2x2 minors of the rows x, y (the lattice area of the parallelogram they
+ * span, measured in the saturated lattice of their plane). */
+static void minors_gcd(mpz_t out, mpz_t *x, mpz_t *y, size_t n)
+{
+    mpz_t m;
+    mpz_init(m);
+    mpz_set_ui(out, 0);
+    for (size_t i = 0; i < n; i++)
+        for (size_t j = i + 1; j < n; j++) {
+            mpz_mul(m, x[i], y[j]);
+            mpz_submul(m, x[j], y[i]);
+            mpz_gcd(out, out, m);
+        }
+    mpz_clear(m);
+}
+
+/* Difference of two exponent vectors as mpz. */
+static void exp_diff(mpz_t *out, const tp_points *P, size_t i, size_t j)
+{
+    mpz_t t;
+    mpz_init(t);
+    for (size_t k = 0; k < P->n; k++) {
+        mpz_set_si(out[k], (long)P->exps[i * P->n + k]);
+        mpz_set_si(t, (long)P->exps[j * P->n + k]);
+        mpz_sub(out[k], out[k], t);
+    }
+    mpz_clear(t);
+}
+
+/* The two extreme points of a collinear point set and its lattice length. */
+static void edge_extremes(const tp_points *P, const size_t *pts, size_t npts, size_t *lo,
+                          size_t *hi, mpz_t len)
+{
+    size_t n = P->n;
+    mpz_t *d = zvec_new(n);
+    mpz_t s, best_lo, best_hi, t;
+    mpz_inits(s, best_lo, best_hi, t, NULL);
+    /* Direction from the first two points; position along it = dot product. */
+    exp_diff(d, P, pts[1], pts[0]);
+    *lo = *hi = pts[0];
+    for (size_t q = 0; q < npts; q++) {
+        mpz_set_ui(s, 0);
+        for (size_t k = 0; k < n; k++) {
+            mpz_set_si(t, (long)P->exps[pts[q] * n + k]);
+            mpz_addmul(s, t, d[k]);
+        }
+        if (q == 0 || mpz_cmp(s, best_lo) < 0) {
+            mpz_set(best_lo, s);
+            *lo = pts[q];
+        }
+        if (q == 0 || mpz_cmp(s, best_hi) > 0) {
+            mpz_set(best_hi, s);
+            *hi = pts[q];
+        }
+    }
+    exp_diff(d, P, *hi, *lo);
+    mpz_set_ui(len, 0);
+    for (size_t k = 0; k < n; k++)
+        mpz_gcd(len, len, d[k]);
+    mpz_clears(s, best_lo, best_hi, t, NULL);
+    zvec_free(d, n);
+}
+
+/* ---- a tiny string builder for initial forms ------------------------------------ */
+
+typedef struct {
+    char *s;
+    size_t len, cap;
+    bool fail;
+} sbuf;
+
+static void sb_put(sbuf *b, const char *t)
+{
+    size_t m = strlen(t);
+    if (b->fail)
+        return;
+    if (b->len + m + 1 > b->cap) {
+        size_t ncap = (b->len + m + 1) * 2;
+        char *g = realloc(b->s, ncap);
+        if (!g) {
+            b->fail = true;
+            return;
+        }
+        b->s = g;
+        b->cap = ncap;
+    }
+    memcpy(b->s + b->len, t, m + 1);
+    b->len += m;
+}
+
+/* residue strings: "3", "-7/4", "2-3i"; a complex or fractional residue is put in
+ * parentheses when multiplied. */
+static char *initial_form(const tp_points *P, const size_t *pts, size_t npts,
+                          char *const *vars)
+{
+    if (!P->residue)
+        return NULL;
+    sbuf b = {0};
+    for (size_t t = 0; t < npts; t++) {
+        const char *r = P->residue[pts[t]];
+        if (!r)
+            r = "1";
+        bool neg = r[0] == '-';
+        const char *mag = neg ? r + 1 : r;
+        bool compound = strpbrk(mag, "+-i") != NULL; /* complex: keep whole, signed */
+        char *mono = tp_monomial_to_str(&P->exps[pts[t] * P->n], P->n, vars);
+        if (!mono) {
+            free(b.s);
+            return NULL;
+        }
+        bool is_one_mono = strcmp(mono, "1") == 0;
+        if (compound) {
+            sb_put(&b, t ? " + (" : "(");
+            sb_put(&b, r);
+            sb_put(&b, ")");
+            if (!is_one_mono) {
+                sb_put(&b, "*");
+                sb_put(&b, mono);
+            }
+        } else {
+            sb_put(&b, t ? (neg ? " - " : " + ") : (neg ? "-" : ""));
+            if (strcmp(mag, "1") != 0 || is_one_mono) {
+                sb_put(&b, mag);
+                if (!is_one_mono)
+                    sb_put(&b, "*");
+            }
+            if (!is_one_mono)
+                sb_put(&b, mono);
+        }
+        free(mono);
+    }
+    if (b.fail) {
+        free(b.s);
+        return NULL;
+    }
+    return b.s ? b.s : strdup("");
+}
+
+/* ---- sorting with permutations ------------------------------------------------ */
+
+typedef struct {
+    mpq_t *q;        /* row of rationals, or NULL */
+    mpz_t *z;        /* row of integers, or NULL */
+    size_t n;
+    size_t idx;
+} rowref;
+
+static int cmp_rowref(const void *x, const void *y)
+{
+    const rowref *a = x, *b = y;
+    for (size_t j = 0; j < a->n; j++) {
+        int c = a->q ? mpq_cmp(a->q[j], b->q[j]) : mpz_cmp(a->z[j], b->z[j]);
+        if (c)
+            return c < 0 ? -1 : 1;
+    }
+    return 0;
+}
+
+static int cmp_size(const void *a, const void *b)
+{
+    size_t x = *(const size_t *)a, y = *(const size_t *)b;
+    return (x > y) - (x < y);
+}
+
+static int cmp_list(const size_t *a, size_t na, const size_t *b, size_t nb)
+{
+    size_t m = na < nb ? na : nb;
+    for (size_t i = 0; i < m; i++)
+        if (a[i] != b[i])
+            return a[i] < b[i] ? -1 : 1;
+    return (na > nb) - (na < nb);
+}
+
+static int cmp_cell(const void *x, const void *y)
+{
+    const tp_complex_cell *a = x, *b = y;
+    if (a->dim != b->dim)
+        return a->dim < b->dim ? -1 : 1;
+    int c = cmp_list(a->verts, a->nverts, b->verts, b->nverts);
+    if (c)
+        return c;
+    return cmp_list(a->rays, a->nrays, b->rays, b->nrays);
+}
+
+/* ---- build ------------------------------------------------------------------------ */
+
+static tp_status nomem(tp_error *err)
+{
+    return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (tropical complex)");
+}
+
+/* Relative interior point: centroid of the vertices plus the sum of the rays. */
+static void interior_point(mpq_t *out, const tp_hull *H, const tp_subdiv_cell *s, size_t n)
+{
+    mpq_t t;
+    mpq_init(t);
+    for (size_t j = 0; j < n; j++)
+        mpq_set_ui(out[j], 0, 1);
+    for (size_t v = 0; v < s->nlower; v++)
+        for (size_t j = 0; j < n; j++)
+            mpq_add(out[j], out[j], H->lower[s->lower[v]].w[j]);
+    if (s->nlower > 1) {
+        mpq_set_ui(t, (unsigned long)s->nlower, 1);
+        for (size_t j = 0; j < n; j++)
+            mpq_div(out[j], out[j], t);
+    }
+    for (size_t r = 0; r < s->nsides; r++)
+        for (size_t j = 0; j < n; j++) {
+            mpq_set_z(t, H->sides[s->sides[r]].u[j]);
+            mpq_add(out[j], out[j], t);
+        }
+    mpq_clear(t);
+}
+
+/* Balancing at the codimension-2 cell dual to the 2-cell `sc`. `edges_of_facet`
+ * (CSR over lower facets) lists the subdivision edges in each lower facet. */
+static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc,
+                               const size_t *eoff, const size_t *eids, bool *mark,
+                               const size_t *cell_of_sub, const tp_complex *C,
+                               bool *balanced)
+{
+    const tp_subdiv_cell *sig = &S->cells[sc];
+    size_t n = P->n;
+    tp_status st = TP_OK;
+    *balanced = false;
+    /* Two differences spanning sigma's plane. */
+    mpz_t *x = zvec_new(n), *y = zvec_new(n), *A = zvec_new(2 * n);
+    mpz_t *K = NULL, *Phi = NULL;
+    mpq_t *dq = qvec_new(n);
+    mpz_t *u = zvec_new(n);
+    mpz_t sum[2], img[2], den, tt;
+    mpz_inits(sum[0], sum[1], img[0], img[1], den, tt, NULL);
+    mpq_t acc;
+    mpq_init(acc);
+    if (!x || !y || !A || !dq || !u) {
+        st = TP_ENOMEM;
+        goto out;
+    }
+    exp_diff(x, P, sig->pts[1], sig->pts[0]);
+    bool found = false;
+    for (size_t t = 2; t < sig->npts && !found; t++) {
+        exp_diff(y, P, sig->pts[t], sig->pts[0]);
+        mpz_t g;
+        mpz_init(g);
+        minors_gcd(g, x, y, n);
+        found = mpz_sgn(g) != 0;
+        mpz_clear(g);
+    }
+    if (!found) {
+        st = TP_EINTERNAL;
+        goto out;
+    }
+    for (size_t k = 0; k < n; k++) {
+        mpz_set(A[k], x[k]);
+        mpz_set(A[n + k], y[k]);
+    }
+    size_t nk = int_kernel(A, 2, n, &K);
+    if (nk == SIZE_MAX) {
+        st = TP_ENOMEM;
+        goto out;
+    }
+    size_t nphi = int_kernel(K, nk, n, &Phi);
+    if (nphi == SIZE_MAX) {
+        st = TP_ENOMEM;
+        goto out;
+    }
+    if (nphi != 2) {
+        st = TP_EINTERNAL;
+        goto out;
+    }
+    mpq_t *p = C->cells[cell_of_sub[sc]].interior;
+    for (size_t t = 0; t < sig->npts; t++)
+        mark[sig->pts[t]] = true;
+    /* Edges of sigma: subdivision edges inside one lower facet containing sigma whose
+     * points all lie in sigma. */
+    size_t f = sig->lower[0];
+    size_t nadj = 0;
+    for (size_t q = eoff[f]; q < eoff[f + 1]; q++) {
+        const tp_subdiv_cell *e = &S->cells[eids[q]];
+        bool inside = true;
+        for (size_t t = 0; t < e->npts && inside; t++)
+            inside = mark[e->pts[t]];
+        if (!inside)
+            continue;
+        nadj++;
+        tp_complex_cell *ce = &C->cells[cell_of_sub[eids[q]]];
+        for (size_t j = 0; j < n; j++)
+            mpq_sub(dq[j], ce->interior[j], p[j]);
+        /* img = Phi(dq), as a primitive integer vector in Z^2 */
+        mpq_t im[2];
+        mpq_inits(im[0], im[1], NULL);
+        for (size_t r = 0; r < 2; r++)
+            for (size_t j = 0; j < n; j++) {
+                mpq_set_z(acc, Phi[r * n + j]);
+                mpq_mul(acc, acc, dq[j]);
+                mpq_add(im[r], im[r], acc);
+            }
+        mpz_t pr[2];
+        mpz_inits(pr[0], pr[1], NULL);
+        primitive_of_q(pr, im, 2);
+        for (size_t r = 0; r < 2; r++)
+            mpz_addmul(sum[r], ce->weight, pr[r]);
+        mpz_clears(pr[0], pr[1], NULL);
+        mpq_clears(im[0], im[1], NULL);
+    }
+    for (size_t t = 0; t < sig->npts; t++)
+        mark[sig->pts[t]] = false;
+    *balanced = nadj >= 3 && mpz_sgn(sum[0]) == 0 && mpz_sgn(sum[1]) == 0;
+out:
+    mpq_clear(acc);
+    mpz_clears(sum[0], sum[1], img[0], img[1], den, tt, NULL);
+    zvec_free(x, n);
+    zvec_free(y, n);
+    zvec_free(A, 2 * n);
+    zvec_free(u, n);
+    qvec_free(dq, n);
+    if (K)
+        zvec_free(K, (n - 2) * n);
+    if (Phi)
+        zvec_free(Phi, 2 * n);
+    return st;
+}
+
+tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P,
+                           char *const *vars, bool max, tp_error *err)
+{
+    tp_complex_clear(C);
+    const tp_hull *H = &S->hull;
+    size_t n = P->n;
+    C->n = n;
+    C->max = max;
+    C->f_vector = calloc(n + 1, sizeof *C->f_vector);
+    if (!C->f_vector)
+        return nomem(err);
+    C->nlin = H->nlin;
+    C->lin = zvec_new(H->nlin * n);
+    if (!C->lin)
+        return nomem(err);
+    for (size_t i = 0; i < H->nlin * n; i++)
+        mpz_set(C->lin[i], H->lin[i]);
+    if (H->dim <= 0) {
+        C->dim = -1; /* a monomial: the hypersurface is empty */
+        C->balanced = true;
+        return TP_OK;
+    }
+    C->dim = (int)n - 1;
+    tp_status st = TP_OK;
+
+    size_t *vmap = NULL, *rmap = NULL, *cell_of_sub = NULL, *eoff = NULL, *eids = NULL;
+    bool *ray_used = NULL, *mark = NULL;
+    rowref *refs = NULL;
+
+    /* Cells, one per subdivision cell of dimension >= 1. */
+    size_t nc = 0;
+    for (size_t s = 0; s < S->ncells; s++)
+        if (S->cells[s].dim >= 1)
+            nc++;
+    C->cells = calloc(nc ? nc : 1, sizeof *C->cells);
+    cell_of_sub = malloc((S->ncells ? S->ncells : 1) * sizeof *cell_of_sub);
+    ray_used = calloc(H->nsides + 1, sizeof *ray_used);
+    if (!C->cells || !cell_of_sub || !ray_used) {
+        st = nomem(err);
+        goto done;
+    }
+    for (size_t s = 0; s < S->ncells; s++) {
+        const tp_subdiv_cell *sig = &S->cells[s];
+        cell_of_sub[s] = SIZE_MAX;
+        if (sig->dim < 1)
+            continue;
+        tp_complex_cell *c = &C->cells[C->ncells];
+        mpz_init(c->weight);
+        mpz_init(c->mult);
+        cell_of_sub[s] = C->ncells++;
+        c->dim = (int)n - sig->dim;
+        c->dual = s;
+        c->nverts = sig->nlower;
+        c->verts = malloc((c->nverts ? c->nverts : 1) * sizeof *c->verts);
+        c->nrays = sig->nsides;
+        c->rays = malloc((c->nrays ? c->nrays : 1) * sizeof *c->rays);
+        c->interior = qvec_new(n);
+        if (!c->verts || !c->rays || !c->interior) {
+            st = nomem(err);
+            goto done;
+        }
+        memcpy(c->verts, sig->lower, c->nverts * sizeof *c->verts);
+        memcpy(c->rays, sig->sides, c->nrays * sizeof *c->rays);
+        for (size_t r = 0; r < c->nrays; r++)
+            ray_used[c->rays[r]] = true;
+        interior_point(c->interior, H, sig, n);
+        if (sig->dim == 1) {
+            size_t lo, hi;
+            edge_extremes(P, sig->pts, sig->npts, &lo, &hi, c->weight);
+        }
+        if (P->residue) {
+            c->initial_form = initial_form(P, sig->pts, sig->npts, vars);
+            if (!c->initial_form) {
+                st = nomem(err);
+                goto done;
+            }
+        }
+        C->f_vector[c->dim]++;
+    }
+
+    /* Vertices: every lower facet normal. */
+    C->nverts = H->nlower;
+    C->verts = qvec_new(C->nverts * n);
+    if (!C->verts) {
+        st = nomem(err);
+        goto done;
+    }
+    for (size_t v = 0; v < H->nlower; v++)
+        for (size_t j = 0; j < n; j++)
+            mpq_set(C->verts[v * n + j], H->lower[v].w[j]);
+    /* Rays: the used Newton facet normals. */
+    rmap = malloc((H->nsides + 1) * sizeof *rmap);
+    if (!rmap) {
+        st = nomem(err);
+        goto done;
+    }
+    size_t nr = 0;
+    for (size_t r = 0; r < H->nsides; r++)
+        rmap[r] = ray_used[r] ? nr++ : SIZE_MAX;
+    C->nrays = nr;
+    C->rays = zvec_new(nr * n);
+    if (!C->rays) {
+        st = nomem(err);
+        goto done;
+    }
+    for (size_t r = 0; r < H->nsides; r++)
+        if (rmap[r] != SIZE_MAX)
+            for (size_t j = 0; j < n; j++)
+                mpz_set(C->rays[rmap[r] * n + j], H->sides[r].u[j]);
+    for (size_t i = 0; i < C->ncells; i++)
+        for (size_t r = 0; r < C->cells[i].nrays; r++)
+            C->cells[i].rays[r] = rmap[C->cells[i].rays[r]];
+
+    /* Vertex multiplicities of curves and of n = 1 (before negation; they are
+     * invariant). */
+    int d = H->dim;
+    if (d == 1 && n == 1) {
+        for (size_t i = 0; i < C->ncells; i++)
+            mpz_set(C->cells[i].mult, C->cells[i].weight);
+    }
+    /* Edges by lower facet (CSR), for balancing and for polygon areas. */
+    eoff = calloc(H->nlower + 1, sizeof *eoff);
+    if (!eoff) {
+        st = nomem(err);
+        goto done;
+    }
+    size_t tot = 0;
+    for (size_t s = 0; s < S->ncells; s++)
+        if (S->cells[s].dim == 1) {
+            for (size_t l = 0; l < S->cells[s].nlower; l++)
+                eoff[S->cells[s].lower[l] + 1]++;
+            tot += S->cells[s].nlower;
+        }
+    for (size_t f = 0; f < H->nlower; f++)
+        eoff[f + 1] += eoff[f];
+    eids = malloc((tot ? tot : 1) * sizeof *eids);
+    size_t *fill = malloc((H->nlower + 1) * sizeof *fill);
+    mark = calloc(P->count + 1, sizeof *mark);
+    if (!eids || !fill || !mark) {
+        free(fill);
+        st = nomem(err);
+        goto done;
+    }
+    memcpy(fill, eoff, (H->nlower + 1) * sizeof *fill);
+    for (size_t s = 0; s < S->ncells; s++)
+        if (S->cells[s].dim == 1)
+            for (size_t l = 0; l < S->cells[s].nlower; l++)
+                eids[fill[S->cells[s].lower[l]]++] = s;
+    free(fill);
+
+    if (d == 2) {
+        /* Normalized area of each maximal polygon: sum over its edges (a, b) of the
+         * lattice area of (b - a, p - a), p a fixed point of the polygon. */
+        mpz_t *e1 = zvec_new(n), *e2 = zvec_new(n);
+        mpz_t g, len;
+        mpz_inits(g, len, NULL);
+        for (size_t s = 0; s < S->ncells && e1 && e2; s++) {
+            const tp_subdiv_cell *sig = &S->cells[s];
+            if (sig->dim != 2)
+                continue;
+            tp_complex_cell *c = &C->cells[cell_of_sub[s]];
+            for (size_t t = 0; t < sig->npts; t++)
+                mark[sig->pts[t]] = true;
+            size_t f = sig->lower[0];
+            for (size_t q = eoff[f]; q < eoff[f + 1]; q++) {
+                const tp_subdiv_cell *e = &S->cells[eids[q]];
+                bool inside = true;
+                for (size_t t = 0; t < e->npts && inside; t++)
+                    inside = mark[e->pts[t]];
+                if (!inside)
+                    continue;
+                size_t lo, hi;
+                edge_extremes(P, e->pts, e->npts, &lo, &hi, len);
+                exp_diff(e1, P, hi, lo);
+                exp_diff(e2, P, sig->pts[0], lo);
+                minors_gcd(g, e1, e2, n);
+                mpz_add(c->mult, c->mult, g);
+            }
+            for (size_t t = 0; t < sig->npts; t++)
+                mark[sig->pts[t]] = false;
+        }
+        mpz_clears(g, len, NULL);
+        zvec_free(e1, n);
+        zvec_free(e2, n);
+    }
+
+    /* Balancing of every codimension-2 cell. */
+    C->balanced = true;
+    if (d >= 2) {
+        for (size_t s = 0; s < S->ncells; s++) {
+            if (S->cells[s].dim != 2)
+                continue;
+            bool ok = false;
+            tp_status bs = check_balance(S, P, s, eoff, eids, mark, cell_of_sub, C, &ok);
+            if (bs == TP_ENOMEM) {
+                st = nomem(err);
+                goto done;
+            }
+            if (!ok) {
+                C->balanced = false;
+                C->nunbalanced++;
+            }
+        }
+    }
+
+    /* Curve invariants (Newton polytope of dimension 2). */
+    if (d == 2) {
+        C->is_curve = true;
+        /* Graph: nodes = cells of dim n-2 (dual to polygons), edges = bounded top cells. */
+        size_t *parent = malloc((C->nverts + 1) * sizeof *parent);
+        if (!parent) {
+            st = nomem(err);
+            goto done;
+        }
+        for (size_t v = 0; v < C->nverts; v++)
+            parent[v] = v;
+        size_t comps = C->nverts;
+        C->nbounded = C->nunbounded = 0;
+        for (size_t i = 0; i < C->ncells; i++) {
+            tp_complex_cell *c = &C->cells[i];
+            if (c->dim != (int)n - 1)
+                continue;
+            if (c->nrays == 0 && c->nverts == 2) {
+                C->nbounded++;
+                size_t a = c->verts[0], b = c->verts[1];
+                while (parent[a] != a)
+                    a = parent[a] = parent[parent[a]];
+                while (parent[b] != b)
+                    b = parent[b] = parent[parent[b]];
+                if (a != b) {
+                    parent[a] = b;
+                    comps--;
+                }
+            } else {
+                C->nunbounded++;
+            }
+        }
+        free(parent);
+        C->genus = (long)C->nbounded - (long)C->nverts + (long)comps;
+        C->smooth = 1;
+        for (size_t s = 0; s < S->ncells; s++) {
+            const tp_subdiv_cell *sig = &S->cells[s];
+            if (sig->dim == 2 &&
+                (sig->npts != 3 || mpz_cmp_ui(C->cells[cell_of_sub[s]].mult, 1) != 0))
+                C->smooth = 0;
+        }
+    }
+
+    /* Max convention: negate everything geometric. */
+    if (max) {
+        for (size_t i = 0; i < C->nverts * n; i++)
+            mpq_neg(C->verts[i], C->verts[i]);
+        for (size_t i = 0; i < C->nrays * n; i++)
+            mpz_neg(C->rays[i], C->rays[i]);
+        for (size_t i = 0; i < C->ncells; i++)
+            for (size_t j = 0; j < n; j++)
+                mpq_neg(C->cells[i].interior[j], C->cells[i].interior[j]);
+    }
+
+    /* Canonical order: sort vertices and rays, remap, sort cells. */
+    size_t nref = C->nverts > C->nrays ? C->nverts : C->nrays;
+    refs = malloc((nref ? nref : 1) * sizeof *refs);
+    vmap = malloc((nref ? nref : 1) * sizeof *vmap);
+    if (!refs || !vmap) {
+        st = nomem(err);
+        goto done;
+    }
+    {
+        for (size_t v = 0; v < C->nverts; v++)
+            refs[v] = (rowref){&C->verts[v * n], NULL, n, v};
+        qsort(refs, C->nverts, sizeof *refs, cmp_rowref);
+        mpq_t *nv = qvec_new(C->nverts * n);
+        if (!nv) {
+            st = nomem(err);
+            goto done;
+        }
+        for (size_t k = 0; k < C->nverts; k++) {
+            vmap[refs[k].idx] = k;
+            for (size_t j = 0; j < n; j++)
+                mpq_swap(nv[k * n + j], C->verts[refs[k].idx * n + j]);
+        }
+        qvec_free(C->verts, C->nverts * n);
+        C->verts = nv;
+        for (size_t i = 0; i < C->ncells; i++) {
+            tp_complex_cell *c = &C->cells[i];
+            for (size_t t = 0; t < c->nverts; t++)
+                c->verts[t] = vmap[c->verts[t]];
+            qsort(c->verts, c->nverts, sizeof *c->verts, cmp_size);
+        }
+    }
+    {
+        for (size_t r = 0; r < C->nrays; r++)
+            refs[r] = (rowref){NULL, &C->rays[r * n], n, r};
+        qsort(refs, C->nrays, sizeof *refs, cmp_rowref);
+        mpz_t *nrz = zvec_new(C->nrays * n);
+        if (!nrz) {
+            st = nomem(err);
+            goto done;
+        }
+        for (size_t k = 0; k < C->nrays; k++) {
+            vmap[refs[k].idx] = k;
+            for (size_t j = 0; j < n; j++)
+                mpz_swap(nrz[k * n + j], C->rays[refs[k].idx * n + j]);
+        }
+        zvec_free(C->rays, C->nrays * n);
+        C->rays = nrz;
+        for (size_t i = 0; i < C->ncells; i++) {
+            tp_complex_cell *c = &C->cells[i];
+            for (size_t t = 0; t < c->nrays; t++)
+                c->rays[t] = vmap[c->rays[t]];
+            qsort(c->rays, c->nrays, sizeof *c->rays, cmp_size);
+        }
+    }
+    qsort(C->cells, C->ncells, sizeof *C->cells, cmp_cell);
+
+    /* Rays by direction with total weight (curves): unbounded top cells with one ray. */
+    if (C->is_curve) {
+        C->raydeg = calloc(C->nrays + 1, sizeof *C->raydeg);
+        if (!C->raydeg) {
+            st = nomem(err);
+            goto done;
+        }
+        C->nraydeg = C->nrays;
+        for (size_t r = 0; r < C->nrays; r++) {
+            C->raydeg[r].dir = zvec_new(n);
+            mpz_init(C->raydeg[r].weight);
+            if (!C->raydeg[r].dir) {
+                st = nomem(err);
+                goto done;
+            }
+            for (size_t j = 0; j < n; j++)
+                mpz_set(C->raydeg[r].dir[j], C->rays[r * n + j]);
+        }
+        for (size_t i = 0; i < C->ncells; i++) {
+            const tp_complex_cell *c = &C->cells[i];
+            if (c->dim == (int)n - 1 && c->nrays == 1)
+                mpz_add(C->raydeg[c->rays[0]].weight, C->raydeg[c->rays[0]].weight,
+                        c->weight);
+        }
+    }
+
+done:
+    free(vmap);
+    free(rmap);
+    free(refs);
+    free(cell_of_sub);
+    free(ray_used);
+    free(eoff);
+    free(eids);
+    free(mark);
+    if (st != TP_OK)
+        tp_complex_clear(C);
+    return st;
+}
+
+tp_status tp_complex_check(const tp_complex *C, tp_error *err)
+{
+    size_t n = C->n;
+    for (size_t i = 0; i < C->ncells; i++) {
+        const tp_complex_cell *c = &C->cells[i];
+        if (c->dim < 0 || c->dim > (int)n - 1)
+            return tp_error_set(err, TP_EINTERNAL, 0, 0, "cell %zu has dimension %d", i,
+                                c->dim);
+        if (c->nverts == 0)
+            return tp_error_set(err, TP_EINTERNAL, 0, 0, "cell %zu has no vertex", i);
+        for (size_t t = 0; t < c->nverts; t++)
+            if (c->verts[t] >= C->nverts || (t && c->verts[t - 1] >= c->verts[t]))
+                return tp_error_set(err, TP_EINTERNAL, 0, 0, "cell %zu: bad vertex list", i);
+        for (size_t t = 0; t < c->nrays; t++)
+            if (c->rays[t] >= C->nrays || (t && c->rays[t - 1] >= c->rays[t]))
+                return tp_error_set(err, TP_EINTERNAL, 0, 0, "cell %zu: bad ray list", i);
+        if (c->dim == (int)n - 1 && mpz_sgn(c->weight) <= 0)
+            return tp_error_set(err, TP_EINTERNAL, 0, 0, "top cell %zu has weight <= 0", i);
+        if (i && cmp_cell(&C->cells[i - 1], c) >= 0)
+            return tp_error_set(err, TP_EINTERNAL, 0, 0, "cells not sorted at %zu", i);
+    }
+    mpz_t g;
+    mpz_init(g);
+    for (size_t r = 0; r < C->nrays; r++) {
+        mpz_set_ui(g, 0);
+        for (size_t j = 0; j < n; j++)
+            mpz_gcd(g, g, C->rays[r * n + j]);
+        if (mpz_cmp_ui(g, 1) != 0) {
+            mpz_clear(g);
+            return tp_error_set(err, TP_EINTERNAL, 0, 0, "ray %zu is not primitive", r);
+        }
+    }
+    mpz_clear(g);
+    if (!C->balanced)
+        return tp_error_set(err, TP_EINTERNAL, 0, 0, "%zu codimension-2 cells are not balanced",
+                            C->nunbalanced);
+    return TP_OK;
+}

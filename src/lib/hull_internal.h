@@ -1,0 +1,30 @@
+/* hull_internal.h — the engines behind tp_hull_lower (not installed).
+ *
+ * Every engine fills H->lower, H->sides and H->on_hull for the non-dup points of P;
+ * tp_hull_lower has already filled H->n, H->npoints, H->dim, H->lin and H->lin_pivot
+ * (tp_hull_span) before calling an engine, and sorts/reduces the result afterwards
+ * (tp_hull_finish), so an engine may produce facets in any order, with w and u not
+ * yet reduced modulo the lineality space and u not yet primitive.
+ */
+#ifndef TROPE_HULL_INTERNAL_H
+#define TROPE_HULL_INTERNAL_H
+
+#include "trope/hull.h"
+
+/* cddlib (GMP exact), every dimension. Thread-safe (one process-wide lock). */
+tp_status tp_hull_lower_cdd(tp_hull *H, const tp_points *P, tp_error *err);
+
+/* The fast exact engine. Sets *handled = false (and returns TP_OK) when it does not
+ * cover this input (dimension, size, degenerate span); the caller then uses cddlib. */
+tp_status tp_hull_lower_fast(tp_hull *H, const tp_points *P, bool *handled, tp_error *err);
+
+/* Sort facets and sides, reduce w and u modulo L, make u primitive. */
+tp_status tp_hull_finish(tp_hull *H, tp_error *err);
+
+/* Append a lower facet / side (the arrays are copied; w, u have H->n entries). */
+tp_status tp_hull_push_lower(tp_hull *H, const size_t *pts, size_t npts, mpq_t *w,
+                             tp_error *err);
+tp_status tp_hull_push_side(tp_hull *H, const size_t *pts, size_t npts, mpz_t *u,
+                            tp_error *err);
+
+#endif
