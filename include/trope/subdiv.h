@@ -26,6 +26,7 @@ typedef struct {
     tp_subdiv_cell *cells;
     size_t nunused;
     size_t *unused;      /* points on no lower face (above the hull, or dup), ascending */
+    double hull_ms;      /* CPU time of tp_hull_lower in the last build (--timings) */
 } tp_subdiv;
 
 void tp_subdiv_init(tp_subdiv *S);

@@ -29,6 +29,7 @@ typedef struct {
     tp_complex complex;
     bool max;
     char source[256];    /* input name */
+    double ms_hull, ms_subdiv, ms_complex; /* stage CPU times, last run (--timings) */
 } tp_trop;
 
 void tp_trop_init(tp_trop *T);

@@ -13,6 +13,7 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 void tp_subdiv_init(tp_subdiv *S)
 {
@@ -311,7 +312,11 @@ static int cmp_cell(const void *x, const void *y)
 tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp_error *err)
 {
     tp_subdiv_clear(S);
+    struct timespec t0, t1;
+    clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t0);
     tp_status st = tp_hull_lower(&S->hull, P, engine, err);
+    clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t1);
+    S->hull_ms = (double)(t1.tv_sec - t0.tv_sec) * 1e3 + (double)(t1.tv_nsec - t0.tv_nsec) * 1e-6;
     if (st != TP_OK)
         return st;
     const tp_hull *H = &S->hull;

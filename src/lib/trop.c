@@ -4,6 +4,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <time.h>
 
 void tp_trop_init(tp_trop *T)
 {
@@ -35,10 +36,19 @@ void tp_trop_clear(tp_trop *T)
 
 static tp_status run(tp_trop *T, const tp_trop_options *opt, tp_error *err)
 {
+    struct timespec t0, t1, t2;
+    clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t0);
     tp_status st = tp_subdiv_build(&T->subdiv, &T->points, opt->engine, err);
+    clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t1);
+    T->ms_hull = T->subdiv.hull_ms;
+    T->ms_subdiv = (double)(t1.tv_sec - t0.tv_sec) * 1e3 +
+                   (double)(t1.tv_nsec - t0.tv_nsec) * 1e-6 - T->ms_hull;
     if (st != TP_OK)
         return st;
-    return tp_complex_build(&T->complex, &T->subdiv, &T->points, T->vars, opt->max, err);
+    st = tp_complex_build(&T->complex, &T->subdiv, &T->points, T->vars, opt->max, err);
+    clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t2);
+    T->ms_complex = (double)(t2.tv_sec - t1.tv_sec) * 1e3 + (double)(t2.tv_nsec - t1.tv_nsec) * 1e-6;
+    return st;
 }
 
 static tp_status copy_vars(tp_trop *T, char *const *vars, size_t nvars, tp_error *err)
