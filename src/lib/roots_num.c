@@ -1008,11 +1008,14 @@ size_t cx_roots(const mpc_t *c, size_t n, mpc_t *roots, size_t *mult)
         return 0;
     mpc_t *z = malloc(deg * sizeof *z);
     bool *done = calloc(deg, sizeof *done);
+    double *last = malloc(deg * sizeof *last);
     mpc_t *d = malloc(n * sizeof *d);
-    if (!z || !done || !d) {
-        free(z); free(done); free(d);
+    if (!z || !done || !d || !last) {
+        free(z); free(done); free(d); free(last);
         return (size_t)-1;
     }
+    for (size_t k = 0; k < deg; k++)
+        last[k] = 1e300;
     mpc_t v, dv, s, w, one;
     mpfr_t r, a, tol;
     mpc_init2(v, RN_PREC); mpc_init2(dv, RN_PREC); mpc_init2(s, RN_PREC);
@@ -1060,11 +1063,17 @@ size_t cx_roots(const mpc_t *c, size_t n, mpc_t *roots, size_t *mult)
             mpc_sub(z[k], z[k], w, MPC_RNDNN);
             mpc_abs(a, w, MPFR_RNDN);
             mpc_abs(r, z[k], MPFR_RNDN);
-            mpfr_mul_2si(r, r, -(RN_PREC - 24), MPFR_RNDN);
-            if (mpfr_cmp(a, r) <= 0)
+            /* converged: the step is at the rounding level, or it stopped shrinking
+             * once below 2^-200 relative (rounding noise; the final Newton polish
+             * restores full precision) */
+            mpfr_mul_2si(tol, r, -(RN_PREC - 64), MPFR_RNDN);
+            mpfr_mul_2si(r, r, -200, MPFR_RNDN);
+            double l = mpfr_get_d(a, MPFR_RNDN) == 0 ? -1e300 : mpfr_get_exp(a) * 1.0;
+            if (mpfr_cmp(a, tol) <= 0 || (mpfr_cmp(a, r) <= 0 && l >= last[k]))
                 done[k] = true;
             else
                 moved = true;
+            last[k] = l;
         }
         if (!moved)
             break;
@@ -1074,7 +1083,7 @@ size_t cx_roots(const mpc_t *c, size_t n, mpc_t *roots, size_t *mult)
     if (!cl) {
         for (size_t k = 0; k < deg; k++)
             mpc_clear(z[k]);
-        free(z); free(done); free(d);
+        free(z); free(done); free(d); free(last);
         mpc_clear(v); mpc_clear(dv); mpc_clear(s); mpc_clear(w); mpc_clear(one);
         mpfr_clear(r); mpfr_clear(a); mpfr_clear(tol);
         return (size_t)-1;
@@ -1146,7 +1155,7 @@ size_t cx_roots(const mpc_t *c, size_t n, mpc_t *roots, size_t *mult)
     free(cl);
     for (size_t k = 0; k < deg; k++)
         mpc_clear(z[k]);
-    free(z); free(done); free(d);
+    free(z); free(done); free(d); free(last);
     mpc_clear(v); mpc_clear(dv); mpc_clear(s); mpc_clear(w); mpc_clear(one);
     mpfr_clear(r); mpfr_clear(a); mpfr_clear(tol);
     return nout;
