@@ -15,7 +15,12 @@
 typedef struct {
     bool max;            /* max convention */
     tp_engine engine;
+    size_t max_cdd_points; /* refuse (TP_ELIMIT) inputs that need the cddlib engine and
+                              have more distinct points than this; 0 = the default,
+                              TP_TROP_MAX_CDD_POINTS (--max-cdd-points) */
 } tp_trop_options;
+
+#define TP_TROP_MAX_CDD_POINTS 3000
 
 typedef struct {
     bool has_field;      /* false for --points input */

@@ -14,4 +14,8 @@ TP_MUST_CHECK tp_status tp_write_text(FILE *out, const tp_trop *T, tp_error *err
  * One object per call, newline-terminated. returns TP_OK or TP_EIO. */
 TP_MUST_CHECK tp_status tp_write_json(FILE *out, const tp_trop *T, tp_error *err);
 
+/* tp_json_put_string: s as a JSON string literal (quotes, backslashes and control
+ * characters escaped; UTF-8 passed through). */
+void tp_json_put_string(FILE *out, const char *s);
+
 #endif

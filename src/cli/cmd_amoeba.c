@@ -86,20 +86,7 @@ static bool parse_reals(const char *s, double *out, int n)
     return *p == '\0';
 }
 
-static void json_str(FILE *f, const char *s)
-{
-    fputc('"', f);
-    for (; *s; s++) {
-        unsigned char c = (unsigned char)*s;
-        if (c == '"' || c == '\\')
-            fprintf(f, "\\%c", c);
-        else if (c < 0x20)
-            fprintf(f, "\\u%04x", c);
-        else
-            fputc(c, f);
-    }
-    fputc('"', f);
-}
+static void json_str(FILE *f, const char *s) { tp_json_put_string(f, s); }
 
 /* JSON numbers: shortest round-trip form would need more code; %.17g round-trips */
 static void json_num(FILE *f, double x)
@@ -132,28 +119,44 @@ static tp_status put_complex(FILE *f, const char *role, const tp_trop *T, tp_err
     return st;
 }
 
-/* the text report of a complex, indented */
-static tp_status put_text_indented(FILE *f, const tp_trop *T, tp_error *err)
+/* A plane tropical curve for people: vertices to 6 decimals (the exact rationals are
+ * in --format json), then its edges and rays with their weights. */
+static tp_status put_curve_decimal(FILE *f, const tp_trop *T, tp_error *err)
 {
-    char *buf = NULL;
-    size_t len = 0;
-    FILE *mem = open_memstream(&buf, &len);
-    if (!mem)
-        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory");
-    tp_status st = tp_write_text(mem, T, err);
-    if (fclose(mem) != 0 && st == TP_OK)
-        st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory");
-    if (st == TP_OK) {
-        bool bol = true;
-        for (size_t k = 0; k < len; k++) {
-            if (bol && buf[k] != '\n')
-                fputs("    ", f);
-            fputc(buf[k], f);
-            bol = buf[k] == '\n';
-        }
+    (void)err;
+    const tp_complex *C = &T->complex;
+    size_t n = C->n;
+    if (C->dim < 0) {
+        fputs("    (empty)\n", f);
+        return TP_OK;
     }
-    free(buf);
-    return st;
+    fprintf(f, "    %zu vertices (coordinates to 6 decimals; exact values in --format json)\n",
+            C->nverts);
+    for (size_t v = 0; v < C->nverts; v++) {
+        fprintf(f, "      v%-3zu (", v);
+        for (size_t j = 0; j < n; j++)
+            fprintf(f, "%s%.6f", j ? ", " : "", mpq_get_d(C->verts[v * n + j]));
+        fputs(")\n", f);
+    }
+    fputs("    edges and rays (weight)\n", f);
+    for (size_t i = 0; i < C->ncells; i++) {
+        const tp_complex_cell *c = &C->cells[i];
+        if (c->dim != (int)n - 1)
+            continue;
+        char b[160];
+        int len = 0;
+        for (size_t t = 0; t < c->nverts && len < 100; t++)
+            len += snprintf(b + len, sizeof b - (size_t)len, "%sv%zu", t ? " - " : "", c->verts[t]);
+        for (size_t t = 0; t < c->nrays && len < 100; t++) {
+            const mpz_t *r = (const mpz_t *)&C->rays[c->rays[t] * n];
+            len += snprintf(b + len, sizeof b - (size_t)len, " + ray (%ld, %ld)",
+                            mpz_get_si(r[0]), n > 1 ? mpz_get_si(r[1]) : 0L);
+        }
+        fprintf(f, "      %-36s ", b);
+        mpz_out_str(f, 10, c->weight);
+        fputc('\n', f);
+    }
+    return TP_OK;
 }
 
 static void put_order(FILE *f, const int64_t *o)
@@ -623,11 +626,11 @@ int cmd_amoeba(int argc, char **argv)
                     E->bounded ? "bounded" : (E->vertex ? "vertex" : "unbounded"), cval);
         }
         fputs("\nspine: the tropical curve max over components of (c + <order, x>)\n", f);
-        st = put_text_indented(f, &spine, &err);
+        st = put_curve_decimal(f, &spine, &err);
         if (st)
             goto fail;
         fputs("\nArchimedean tropical curve max(log|c_a| + <a, x>)\n", f);
-        st = put_text_indented(f, &arch, &err);
+        st = put_curve_decimal(f, &arch, &err);
         if (st)
             goto fail;
     }

@@ -57,6 +57,10 @@ static const char help_text[] =
     "  --max-terms N     refuse inputs with more than N terms (default 1000000)\n"
     "  --max-depth N     refuse parentheses nested deeper than N (default 200)\n"
     "  --max-digits N    refuse numbers longer than N digits (default 1000000)\n"
+    "  --max-polys N     refuse inputs with more than N polynomials (default 100000)\n"
+    "  --max-cdd-points N  refuse inputs that only the cddlib engine can take (more\n"
+    "                    than 3 variables, lower-dimensional Newton polytopes) with\n"
+    "                    more than N distinct points (default 3000)\n"
     "\n"
     "exit status: 0 success, 2 bad input or usage, 1 other failures\n";
 
@@ -167,7 +171,7 @@ int cmd_tropicalize(int argc, char **argv)
     cli_protect_input(o.input);
     cli_protect_input(o.points);
 
-    tp_trop_options topt = {.max = o.max, .engine = o.engine};
+    tp_trop_options topt = {.max = o.max, .engine = o.engine, .max_cdd_points = o.max_cdd_points};
     tp_error err;
     tp_error_init(&err, NULL);
     double t0 = now_ms(), t_parse = 0, t_trop = 0, t_write = 0;

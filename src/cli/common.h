@@ -25,7 +25,8 @@ typedef struct {
     bool max;                /* --max */
     tp_engine engine;        /* --engine auto|cdd|fast */
     bool timings;            /* --timings */
-    tp_parse_options limits; /* --max-terms, --max-depth, --max-digits */
+    tp_parse_options limits; /* --max-terms, --max-depth, --max-digits, --max-polys */
+    size_t max_cdd_points;   /* --max-cdd-points (0: the library's default) */
 } cli_opts;
 
 /* cli_common_option: if argv[*i] is one of the common options above, consume it (and

@@ -1,4 +1,5 @@
 /* lift.c — Kapranov witnesses (see trope/lift.h). */
+#include "trope/write.h"
 #include "trope/lift.h"
 #include "roots_internal.h"
 
@@ -796,19 +797,7 @@ tp_status tp_lift_compute(tp_lift *L, const tp_poly *f, const tp_field *F, char 
 
 /* ------------------------------------------------------------ writers */
 
-static void put_str(FILE *o, const char *s)
-{
-    fputc('"', o);
-    for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
-        if (*p == '"' || *p == '\\')
-            fprintf(o, "\\%c", *p);
-        else if (*p < 0x20)
-            fprintf(o, "\\u%04x", *p);
-        else
-            fputc(*p, o);
-    }
-    fputc('"', o);
-}
+static void put_str(FILE *o, const char *s) { tp_json_put_string(o, s); }
 
 static void put_qs(FILE *o, const mpq_t q)
 {

@@ -1,5 +1,6 @@
 /* roots.c — Newton polygons, residual polynomials, Newton–Puiseux expansions and
  * p-adic Hensel digits of the roots of a univariate polynomial (see trope/roots.h). */
+#include "trope/write.h"
 #include "trope/roots.h"
 #include "roots_internal.h"
 
@@ -1601,19 +1602,7 @@ char *tp_root_term_str(const tp_root_term *T, const char *param)
     return s;
 }
 
-static void put_str(FILE *o, const char *s)
-{
-    fputc('"', o);
-    for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
-        if (*p == '"' || *p == '\\')
-            fprintf(o, "\\%c", *p);
-        else if (*p < 0x20)
-            fprintf(o, "\\u%04x", *p);
-        else
-            fputc(*p, o);
-    }
-    fputc('"', o);
-}
+static void put_str(FILE *o, const char *s) { tp_json_put_string(o, s); }
 
 static void put_qstr(FILE *o, const mpq_t q)
 {

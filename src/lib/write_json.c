@@ -12,32 +12,149 @@
 #include <stdlib.h>
 #include <string.h>
 #include <inttypes.h>
+#include <stdarg.h>
+#include <stdio.h>
+
+/* A buffered writer: output is collected in a fixed buffer and handed to the FILE in
+ * large blocks, and numbers are formatted by hand (int64 fast paths, GMP beyond). */
+typedef struct {
+    FILE *out;
+    size_t len;
+    bool fail;
+    char buf[1 << 16];
+} jw;
+
+static void jw_flush(jw *w)
+{
+    if (w->len && fwrite(w->buf, 1, w->len, w->out) != w->len)
+        w->fail = true;
+    w->len = 0;
+}
+
+static void jw_write(jw *w, const char *s, size_t m)
+{
+    if (w->len + m > sizeof w->buf) {
+        jw_flush(w);
+        if (m > sizeof w->buf) {
+            if (fwrite(s, 1, m, w->out) != m)
+                w->fail = true;
+            return;
+        }
+    }
+    memcpy(w->buf + w->len, s, m);
+    w->len += m;
+}
+
+static void jw_puts(jw *w, const char *s)
+{
+    jw_write(w, s, strlen(s));
+}
+
+static void jw_putc(jw *w, int c)
+{
+    if (w->len + 1 > sizeof w->buf)
+        jw_flush(w);
+    w->buf[w->len++] = (char)c;
+}
+
+static void jw_printf(jw *w, const char *fmt, ...)
+{
+    char tmp[256];
+    va_list ap;
+    va_start(ap, fmt);
+    int m = vsnprintf(tmp, sizeof tmp, fmt, ap);
+    va_end(ap);
+    if (m < 0) {
+        w->fail = true;
+        return;
+    }
+    if ((size_t)m < sizeof tmp) {
+        jw_write(w, tmp, (size_t)m);
+        return;
+    }
+    char *big = malloc((size_t)m + 1);
+    if (!big) {
+        w->fail = true;
+        return;
+    }
+    va_start(ap, fmt);
+    vsnprintf(big, (size_t)m + 1, fmt, ap);
+    va_end(ap);
+    jw_write(w, big, (size_t)m);
+    free(big);
+}
+
+/* Decimal digits of an unsigned value into the end of tmp; returns the start. */
+static char *fmt_u64(char *end, uint64_t v)
+{
+    char *p = end;
+    do {
+        *--p = (char)('0' + v % 10);
+        v /= 10;
+    } while (v);
+    return p;
+}
+
+static void jw_u64(jw *w, uint64_t v)
+{
+    char tmp[24];
+    char *p = fmt_u64(tmp + sizeof tmp, v);
+    jw_write(w, p, (size_t)(tmp + sizeof tmp - p));
+}
+
+static void jw_i64(jw *w, int64_t v)
+{
+    if (v < 0) {
+        jw_putc(w, '-');
+        jw_u64(w, (uint64_t)0 - (uint64_t)v);
+    } else {
+        jw_u64(w, (uint64_t)v);
+    }
+}
+
+/* An integer as decimal digits (as mpz_out_str would print it). */
+static void jw_mpz(jw *w, const mpz_t z)
+{
+    if (mpz_fits_slong_p(z)) {
+        jw_i64(w, (int64_t)mpz_get_si(z));
+        return;
+    }
+    char *s = mpz_get_str(NULL, 10, z);
+    if (!s) {
+        w->fail = true;
+        return;
+    }
+    jw_puts(w, s);
+    void (*freefunc)(void *, size_t);
+    mp_get_memory_functions(NULL, NULL, &freefunc);
+    freefunc(s, strlen(s) + 1);
+}
 
 /* JSON string with escapes; bytes that are not valid UTF-8 become U+FFFD. */
-static void put_str(FILE *f, const char *s)
+static void put_str(jw *f, const char *s)
 {
     const unsigned char *p = (const unsigned char *)s;
-    fputc('"', f);
+    jw_putc(f, '"');
     while (*p) {
         unsigned char c = *p;
         if (c == '"' || c == '\\') {
-            fputc('\\', f);
-            fputc(c, f);
+            jw_putc(f, '\\');
+            jw_putc(f, c);
             p++;
         } else if (c == '\n') {
-            fputs("\\n", f);
+            jw_puts(f, "\\n");
             p++;
         } else if (c == '\t') {
-            fputs("\\t", f);
+            jw_puts(f, "\\t");
             p++;
         } else if (c == '\r') {
-            fputs("\\r", f);
+            jw_puts(f, "\\r");
             p++;
         } else if (c < 0x20 || c == 0x7f) {
-            fprintf(f, "\\u%04x", c);
+            jw_printf(f, "\\u%04x", c);
             p++;
         } else if (c < 0x80) {
-            fputc(c, f);
+            jw_putc(f, c);
             p++;
         } else {
             /* validate one UTF-8 sequence */
@@ -51,93 +168,102 @@ static void put_str(FILE *f, const char *s)
             if (ok && len == 4 && ((c == 0xf0 && p[1] < 0x90) || (c == 0xf4 && p[1] > 0x8f)))
                 ok = false;
             if (ok) {
-                fwrite(p, 1, (size_t)len, f);
+                jw_write(f, (const char *)p, (size_t)len);
                 p += len;
             } else {
-                fputs("\\ufffd", f);
+                jw_puts(f, "\\ufffd");
                 p++;
             }
         }
     }
-    fputc('"', f);
+    jw_putc(f, '"');
 }
 
-/* Exact rational as a JSON string, optionally negated. */
-static void put_rat(FILE *f, const mpq_t q, bool negate)
+/* Exact rational as a JSON string, optionally negated ("p/q", or "p" when integral,
+ * as mpq_out_str prints it). */
+static void put_rat(jw *f, const mpq_t q, bool negate)
 {
-    mpq_t t;
-    mpq_init(t);
-    if (negate)
-        mpq_neg(t, q);
-    else
-        mpq_set(t, q);
-    fputc('"', f);
-    mpq_out_str(f, 10, t);
-    fputc('"', f);
-    mpq_clear(t);
+    jw_putc(f, '"');
+    bool neg = (mpq_sgn(q) < 0) != negate && mpq_sgn(q) != 0;
+    if (neg)
+        jw_putc(f, '-');
+    mpz_t a; /* |numerator| as a read-only alias */
+    mpz_roinit_n(a, mpz_limbs_read(mpq_numref(q)), (mp_size_t)mpz_size(mpq_numref(q)));
+    jw_mpz(f, a);
+    if (mpz_cmp_ui(mpq_denref(q), 1) != 0) {
+        jw_putc(f, '/');
+        jw_mpz(f, mpq_denref(q));
+    }
+    jw_putc(f, '"');
 }
 
-static void put_rat_vec(FILE *f, mpq_t *v, size_t n, bool negate)
+static void put_rat_vec(jw *f, mpq_t *v, size_t n, bool negate)
 {
-    fputc('[', f);
+    jw_putc(f, '[');
     for (size_t k = 0; k < n; k++) {
         if (k)
-            fputs(", ", f);
+            jw_puts(f, ", ");
         put_rat(f, v[k], negate);
     }
-    fputc(']', f);
+    jw_putc(f, ']');
 }
 
-static void put_z_vec(FILE *f, mpz_t *v, size_t n)
+static void put_z_vec(jw *f, mpz_t *v, size_t n)
 {
-    fputc('[', f);
+    jw_putc(f, '[');
     for (size_t k = 0; k < n; k++) {
         if (k)
-            fputs(", ", f);
-        mpz_out_str(f, 10, v[k]);
+            jw_puts(f, ", ");
+        jw_mpz(f, v[k]);
     }
-    fputc(']', f);
+    jw_putc(f, ']');
 }
 
-static void put_i64_vec(FILE *f, const int64_t *v, size_t n)
+static void put_i64_vec(jw *f, const int64_t *v, size_t n)
 {
-    fputc('[', f);
-    for (size_t k = 0; k < n; k++)
-        fprintf(f, "%s%" PRId64, k ? ", " : "", v[k]);
-    fputc(']', f);
+    jw_putc(f, '[');
+    for (size_t k = 0; k < n; k++) {
+        if (k)
+            jw_write(f, ", ", 2);
+        jw_i64(f, v[k]);
+    }
+    jw_putc(f, ']');
 }
 
-static void put_idx_vec(FILE *f, const size_t *v, size_t n)
+static void put_idx_vec(jw *f, const size_t *v, size_t n)
 {
-    fputc('[', f);
-    for (size_t k = 0; k < n; k++)
-        fprintf(f, "%s%zu", k ? ", " : "", v[k]);
-    fputc(']', f);
+    jw_putc(f, '[');
+    for (size_t k = 0; k < n; k++) {
+        if (k)
+            jw_write(f, ", ", 2);
+        jw_u64(f, (uint64_t)v[k]);
+    }
+    jw_putc(f, ']');
 }
 
-static void put_over(FILE *f, const tp_trop *T)
+static void put_over(jw *f, const tp_trop *T)
 {
     if (!T->has_field) {
-        fputs("null", f);
+        jw_puts(f, "null");
         return;
     }
     switch (T->field.kind) {
     case TP_FIELD_PADIC:
-        fputs("{\"kind\": \"p-adic\", \"p\": ", f);
-        mpz_out_str(f, 10, T->field.p);
-        fputc('}', f);
+        jw_puts(f, "{\"kind\": \"p-adic\", \"p\": ");
+        jw_mpz(f, T->field.p);
+        jw_putc(f, '}');
         break;
     case TP_FIELD_PUISEUX:
-        fputs("{\"kind\": \"puiseux\", \"parameter\": ", f);
+        jw_puts(f, "{\"kind\": \"puiseux\", \"parameter\": ");
         put_str(f, T->field.param);
-        fputc('}', f);
+        jw_putc(f, '}');
         break;
     case TP_FIELD_COMPLEX:
-        fputs("{\"kind\": \"complex\"}", f);
+        jw_puts(f, "{\"kind\": \"complex\"}");
         break;
     case TP_FIELD_TRIVIAL:
     default:
-        fputs("{\"kind\": \"trivial\"}", f);
+        jw_puts(f, "{\"kind\": \"trivial\"}");
         break;
     }
 }
@@ -160,58 +286,58 @@ static bool point_used(const tp_trop *T, size_t i)
 }
 
 /* Variable name k: the trop's own names, or x1, x2, ... when it has none. */
-static void put_var(FILE *f, const tp_trop *T, size_t k)
+static void put_var(jw *f, const tp_trop *T, size_t k)
 {
     if (T->vars && k < T->nvars && T->vars[k]) {
         put_str(f, T->vars[k]);
     } else {
-        fprintf(f, "\"x%zu\"", k + 1);
+        jw_printf(f, "\"x%zu\"", k + 1);
     }
 }
 
-static tp_status write_terms(FILE *f, const tp_trop *T, tp_error *err)
+static tp_status write_terms(jw *f, const tp_trop *T, tp_error *err)
 {
     const tp_points *P = &T->points;
     size_t n = P->n;
-    fputs("  \"terms\": [", f);
+    jw_puts(f, "  \"terms\": [");
     if (T->has_poly) {
         const tp_poly *p = &T->poly;
         mpq_t v;
         mpq_init(v);
         for (size_t i = 0; i < p->nterms; i++) {
-            fputs(i ? ",\n    " : "\n    ", f);
-            fputs("{\"exponent\": ", f);
+            jw_puts(f, i ? ",\n    " : "\n    ");
+            jw_puts(f, "{\"exponent\": ");
             put_i64_vec(f, p->exps + i * p->nvars, p->nvars);
             char *c = tp_coeff_to_str(&p->coeffs[i], &T->field);
             if (!c) {
                 mpq_clear(v);
                 return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory writing JSON");
             }
-            fputs(", \"coefficient\": ", f);
+            jw_puts(f, ", \"coefficient\": ");
             put_str(f, c);
             free(c);
             tp_coeff_val(v, &p->coeffs[i], &T->field);
-            fputs(", \"valuation\": ", f);
+            jw_puts(f, ", \"valuation\": ");
             put_rat(f, v, false);
-            fprintf(f, ", \"used\": %s}", i < P->count && point_used(T, i) ? "true" : "false");
+            jw_printf(f, ", \"used\": %s}", i < P->count && point_used(T, i) ? "true" : "false");
         }
         mpq_clear(v);
     } else {
         for (size_t i = 0; i < P->count; i++) {
-            fputs(i ? ",\n    " : "\n    ", f);
-            fputs("{\"exponent\": ", f);
+            jw_puts(f, i ? ",\n    " : "\n    ");
+            jw_puts(f, "{\"exponent\": ");
             put_i64_vec(f, P->exps + i * n, n);
             /* heights are stored as the lower hull sees them: negated under --max */
-            fputs(", \"height\": ", f);
+            jw_puts(f, ", \"height\": ");
             put_rat(f, P->heights[i], T->max);
-            fprintf(f, ", \"used\": %s}", point_used(T, i) ? "true" : "false");
+            jw_printf(f, ", \"used\": %s}", point_used(T, i) ? "true" : "false");
         }
     }
-    fputs("\n  ],\n", f);
+    jw_puts(f, "\n  ],\n");
     return TP_OK;
 }
 
-static void write_subdivision(FILE *f, const tp_trop *T)
+static void write_subdivision(jw *f, const tp_trop *T)
 {
     const tp_subdiv *S = &T->subdiv;
     const tp_hull *H = &S->hull;
@@ -225,13 +351,13 @@ static void write_subdivision(FILE *f, const tp_trop *T)
             if (T->complex.cells[k].dual < S->ncells)
                 dual_of[T->complex.cells[k].dual] = k;
     }
-    fputs("  \"subdivision\": {\n    \"cells\": [", f);
+    jw_puts(f, "  \"subdivision\": {\n    \"cells\": [");
     for (size_t c = 0; c < S->ncells; c++) {
         const tp_subdiv_cell *sc = &S->cells[c];
-        fputs(c ? ",\n      " : "\n      ", f);
-        fputs("{\"points\": ", f);
+        jw_puts(f, c ? ",\n      " : "\n      ");
+        jw_puts(f, "{\"points\": ");
         put_idx_vec(f, sc->pts, sc->npts);
-        fprintf(f, ", \"dim\": %d, \"normal\": ", sc->dim);
+        jw_printf(f, ", \"dim\": %d, \"normal\": ", sc->dim);
         /* a maximal cell lies on exactly one lower facet: its normal is that facet's;
          * a smaller cell's normal is the relative interior point of its dual cell
          * (already in the output convention); a vertex has none */
@@ -240,134 +366,145 @@ static void write_subdivision(FILE *f, const tp_trop *T)
         else if (dual_of && dual_of[c] != SIZE_MAX)
             put_rat_vec(f, T->complex.cells[dual_of[c]].interior, n, false);
         else
-            fputs("null", f);
-        fputc('}', f);
+            jw_puts(f, "null");
+        jw_putc(f, '}');
     }
-    fputs(S->ncells ? "\n    ],\n" : "],\n", f);
-    fputs("    \"unused\": ", f);
+    jw_puts(f, S->ncells ? "\n    ],\n" : "],\n");
+    jw_puts(f, "    \"unused\": ");
     put_idx_vec(f, S->unused, S->nunused);
-    fputs("\n  },\n", f);
+    jw_puts(f, "\n  },\n");
     free(dual_of);
 }
 
-static void write_complex(FILE *f, const tp_trop *T)
+static void write_complex(jw *f, const tp_trop *T)
 {
     const tp_complex *C = &T->complex;
     const tp_subdiv *S = &T->subdiv;
     size_t n = C->n;
-    fprintf(f, "  \"complex\": {\n    \"ambient_dim\": %zu,\n    \"dim\": %d,\n", n, C->dim);
-    fputs("    \"lineality\": [", f);
+    jw_printf(f, "  \"complex\": {\n    \"ambient_dim\": %zu,\n    \"dim\": %d,\n", n, C->dim);
+    jw_puts(f, "    \"lineality\": [");
     for (size_t k = 0; k < C->nlin; k++) {
         if (k)
-            fputs(", ", f);
+            jw_puts(f, ", ");
         put_z_vec(f, C->lin + k * n, n);
     }
-    fputs("],\n    \"vertices\": [", f);
+    jw_puts(f, "],\n    \"vertices\": [");
     for (size_t k = 0; k < C->nverts; k++) {
-        fputs(k ? ",\n      " : "\n      ", f);
+        jw_puts(f, k ? ",\n      " : "\n      ");
         put_rat_vec(f, C->verts + k * n, n, false);
     }
-    fputs(C->nverts ? "\n    ],\n" : "],\n", f);
-    fputs("    \"rays\": [", f);
+    jw_puts(f, C->nverts ? "\n    ],\n" : "],\n");
+    jw_puts(f, "    \"rays\": [");
     for (size_t k = 0; k < C->nrays; k++) {
-        fputs(k ? ",\n      " : "\n      ", f);
+        jw_puts(f, k ? ",\n      " : "\n      ");
         put_z_vec(f, C->rays + k * n, n);
     }
-    fputs(C->nrays ? "\n    ],\n" : "],\n", f);
-    fputs("    \"cells\": [", f);
+    jw_puts(f, C->nrays ? "\n    ],\n" : "],\n");
+    jw_puts(f, "    \"cells\": [");
     for (size_t c = 0; c < C->ncells; c++) {
         const tp_complex_cell *cc = &C->cells[c];
-        fputs(c ? ",\n      " : "\n      ", f);
-        fprintf(f, "{\"dim\": %d, \"vertices\": ", cc->dim);
+        jw_puts(f, c ? ",\n      " : "\n      ");
+        jw_printf(f, "{\"dim\": %d, \"vertices\": ", cc->dim);
         put_idx_vec(f, cc->verts, cc->nverts);
-        fputs(", \"rays\": ", f);
+        jw_puts(f, ", \"rays\": ");
         put_idx_vec(f, cc->rays, cc->nrays);
-        fputs(", \"weight\": ", f);
-        mpz_out_str(f, 10, cc->weight);
-        fputs(", \"dual\": ", f);
+        jw_puts(f, ", \"weight\": ");
+        jw_mpz(f, cc->weight);
+        jw_puts(f, ", \"dual\": ");
         if (cc->dual < S->ncells)
             put_idx_vec(f, S->cells[cc->dual].pts, S->cells[cc->dual].npts);
         else
-            fputs("[]", f);
-        fprintf(f, ", \"dual_cell\": %zu", cc->dual);
-        fputs(", \"interior\": ", f);
+            jw_puts(f, "[]");
+        jw_printf(f, ", \"dual_cell\": %zu", cc->dual);
+        jw_puts(f, ", \"interior\": ");
         if (cc->interior)
             put_rat_vec(f, cc->interior, n, false);
         else
-            fputs("null", f);
-        fputs(", \"initial_form\": ", f);
+            jw_puts(f, "null");
+        jw_puts(f, ", \"initial_form\": ");
         if (cc->initial_form)
             put_str(f, cc->initial_form);
         else
-            fputs("null", f);
+            jw_puts(f, "null");
         if (mpz_sgn(cc->mult) != 0) {
-            fputs(", \"multiplicity\": ", f);
-            mpz_out_str(f, 10, cc->mult);
+            jw_puts(f, ", \"multiplicity\": ");
+            jw_mpz(f, cc->mult);
         }
-        fputc('}', f);
+        jw_putc(f, '}');
     }
-    fputs(C->ncells ? "\n    ]\n  },\n" : "]\n  },\n", f);
+    jw_puts(f, C->ncells ? "\n    ]\n  },\n" : "]\n  },\n");
 }
 
-static void write_invariants(FILE *f, const tp_trop *T)
+static void write_invariants(jw *f, const tp_trop *T)
 {
     const tp_complex *C = &T->complex;
-    fputs("  \"invariants\": {\n    \"f_vector\": [", f);
+    jw_puts(f, "  \"invariants\": {\n    \"f_vector\": [");
     if (C->f_vector)
         for (int k = 0; k <= C->dim; k++)
-            fprintf(f, "%s%zu", k ? ", " : "", C->f_vector[k]);
-    fprintf(f, "],\n    \"balanced\": %s,\n", C->balanced ? "true" : "false");
-    fprintf(f, "    \"unbalanced\": %zu,\n", C->nunbalanced);
-    fprintf(f, "    \"is_curve\": %s,\n", C->is_curve ? "true" : "false");
+            jw_printf(f, "%s%zu", k ? ", " : "", C->f_vector[k]);
+    jw_printf(f, "],\n    \"balanced\": %s,\n", C->balanced ? "true" : "false");
+    jw_printf(f, "    \"unbalanced\": %zu,\n", C->nunbalanced);
+    jw_printf(f, "    \"is_curve\": %s,\n", C->is_curve ? "true" : "false");
     if (C->is_curve && C->genus >= 0)
-        fprintf(f, "    \"genus\": %ld,\n", C->genus);
+        jw_printf(f, "    \"genus\": %ld,\n", C->genus);
     else
-        fputs("    \"genus\": null,\n", f);
+        jw_puts(f, "    \"genus\": null,\n");
     if (C->smooth >= 0)
-        fprintf(f, "    \"smooth\": %s,\n", C->smooth ? "true" : "false");
+        jw_printf(f, "    \"smooth\": %s,\n", C->smooth ? "true" : "false");
     else
-        fputs("    \"smooth\": null,\n", f);
+        jw_puts(f, "    \"smooth\": null,\n");
     if (C->is_curve) {
-        fprintf(f, "    \"bounded_edges\": %zu,\n", C->nbounded);
-        fprintf(f, "    \"unbounded_edges\": %zu,\n", C->nunbounded);
+        jw_printf(f, "    \"bounded_edges\": %zu,\n", C->nbounded);
+        jw_printf(f, "    \"unbounded_edges\": %zu,\n", C->nunbounded);
     } else {
-        fputs("    \"bounded_edges\": null,\n    \"unbounded_edges\": null,\n", f);
+        jw_puts(f, "    \"bounded_edges\": null,\n    \"unbounded_edges\": null,\n");
     }
-    fputs("    \"rays\": [", f);
+    jw_puts(f, "    \"rays\": [");
     for (size_t k = 0; k < C->nraydeg; k++) {
-        fputs(k ? ",\n      " : "\n      ", f);
-        fputs("{\"direction\": ", f);
+        jw_puts(f, k ? ",\n      " : "\n      ");
+        jw_puts(f, "{\"direction\": ");
         put_z_vec(f, C->raydeg[k].dir, C->n);
-        fputs(", \"weight\": ", f);
-        mpz_out_str(f, 10, C->raydeg[k].weight);
-        fputc('}', f);
+        jw_puts(f, ", \"weight\": ");
+        jw_mpz(f, C->raydeg[k].weight);
+        jw_putc(f, '}');
     }
-    fputs(C->nraydeg ? "\n    ]\n  }\n" : "]\n  }\n", f);
+    jw_puts(f, C->nraydeg ? "\n    ]\n  }\n" : "]\n  }\n");
 }
 
 tp_status tp_write_json(FILE *out, const tp_trop *T, tp_error *err)
 {
-    FILE *f = out;
+    jw *f = malloc(sizeof *f);
+    if (!f)
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory writing JSON");
+    f->out = out;
+    f->len = 0;
+    f->fail = false;
     size_t n = T->points.n;
-    fputs("{\n  \"format\": \"trope.complex/1\",\n", f);
-    fprintf(f, "  \"convention\": \"%s\",\n", T->max ? "max" : "min");
-    fputs("  \"over\": ", f);
+    jw_puts(f, "{\n  \"format\": \"trope.complex/1\",\n");
+    jw_printf(f, "  \"convention\": \"%s\",\n", T->max ? "max" : "min");
+    jw_puts(f, "  \"over\": ");
     put_over(f, T);
-    fputs(",\n  \"variables\": [", f);
+    jw_puts(f, ",\n  \"variables\": [");
     for (size_t k = 0; k < n; k++) {
         if (k)
-            fputs(", ", f);
+            jw_puts(f, ", ");
         put_var(f, T, k);
     }
-    fputs("],\n", f);
+    jw_puts(f, "],\n");
     tp_status st = write_terms(f, T, err);
-    if (st != TP_OK)
+    if (st != TP_OK) {
+        jw_flush(f);
+        free(f);
         return st;
+    }
     write_subdivision(f, T);
     write_complex(f, T);
     write_invariants(f, T);
-    fputs("}\n", f);
-    if (ferror(f))
+    jw_puts(f, "}\n");
+    jw_flush(f);
+    bool fail = f->fail;
+    free(f);
+    if (fail || ferror(out))
         return tp_error_set(err, TP_EIO, 0, 0, "cannot write the JSON output");
     return TP_OK;
 }
