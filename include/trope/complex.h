@@ -22,15 +22,14 @@
 typedef struct {
     int dim;
     size_t nverts;
-    size_t *verts;       /* indices into vertices, ascending */
+    size_t *verts;       /* indices into vertices, ascending (in C->idx_pool) */
     size_t nrays;
-    size_t *rays;        /* indices into rays, ascending */
+    size_t *rays;        /* indices into rays, ascending (in C->idx_pool) */
     size_t dual;         /* index into the subdivision's cells */
     mpz_t weight;        /* top cells: lattice length of the dual edge; else 0 */
     mpz_t mult;          /* dim-0 cells of plane curves (n - nlin == 2) and n == 1:
                             multiplicity (normalized area of the dual polygon, or the
                             weight for n == 1); else 0 */
-    mpq_t *interior;     /* n coordinates of a relative interior point */
     char *initial_form;  /* sum over dual points of residue * monomial; NULL if the
                             points carry no residues */
 } tp_complex_cell;
@@ -52,6 +51,7 @@ typedef struct {
     mpz_t *rays;         /* nrays * n */
     size_t ncells;
     tp_complex_cell *cells;
+    size_t *idx_pool;    /* storage behind every cell's verts and rays lists */
 
     /* invariants */
     size_t *f_vector;    /* n + 1 entries: f_vector[k] = number of cells of dimension k */
@@ -77,6 +77,11 @@ void tp_complex_clear(tp_complex *C);
 TP_MUST_CHECK tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S,
                                          const tp_points *P, char *const *vars,
                                          bool max, tp_error *err);
+
+/* tp_complex_interior: a relative interior point of cell i (the centroid of its
+ * vertices plus the sum of its rays), exact, into out[0..n-1] (initialised mpq_t).
+ * Computed on demand: the complex stores no interior points. */
+void tp_complex_interior(const tp_complex *C, size_t i, mpq_t *out);
 
 /* tp_complex_check: dimensions, sortedness, primitive rays, weights > 0 on top cells,
  * and the balancing of every codimension-2 cell. returns TP_OK or TP_EINTERNAL. */

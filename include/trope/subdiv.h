@@ -24,6 +24,7 @@ typedef struct {
     tp_hull hull;        /* owned */
     size_t ncells;
     tp_subdiv_cell *cells;
+    size_t *pool;        /* storage behind every cell's pts, lower and sides lists */
     size_t nunused;
     size_t *unused;      /* points on no lower face (above the hull, or dup), ascending */
     double hull_ms;      /* CPU time of tp_hull_lower in the last build (--timings) */
@@ -37,6 +38,17 @@ void tp_subdiv_clear(tp_subdiv *S);
  *   found from its parent faces through a point -> facet index. */
 TP_MUST_CHECK tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P,
                                         tp_engine engine, tp_error *err);
+
+/* The same with a bound on the number of faces: a simplex with m vertices has 2^m - 1
+ * faces, so a few dozen terms in as many variables would otherwise run for hours.
+ *   returns TP_ELIMIT (message names --max-cells) once the faces found exceed
+ *   max_cells units, a face counting max(1, dim^2/4) units (finding a face costs about
+ *   that much rank work in dimension dim); max_cells 0 means TP_SUBDIV_MAX_CELLS.
+ *   tp_subdiv_build uses the default. */
+#define TP_SUBDIV_MAX_CELLS 5000000
+TP_MUST_CHECK tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P,
+                                                tp_engine engine, size_t max_cells,
+                                                tp_error *err);
 
 /* tp_subdiv_check: every cell's points are affinely of dimension `dim`, lie on every
  * listed lower facet, and cells are sorted. returns TP_OK or TP_EINTERNAL. */

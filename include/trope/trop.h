@@ -18,6 +18,8 @@ typedef struct {
     size_t max_cdd_points; /* refuse (TP_ELIMIT) inputs that need the cddlib engine and
                               have more distinct points than this; 0 = the default,
                               TP_TROP_MAX_CDD_POINTS (--max-cdd-points) */
+    size_t max_cells;      /* refuse subdivisions with more faces (--max-cells); 0 =
+                              TP_SUBDIV_MAX_CELLS */
 } tp_trop_options;
 
 #define TP_TROP_MAX_CDD_POINTS 3000

@@ -147,7 +147,8 @@ int cmd_draw(int argc, char **argv)
     cli_protect_input(o.input);
     cli_protect_input(o.points);
 
-    tp_trop_options topt = {.max = o.max, .engine = o.engine, .max_cdd_points = o.max_cdd_points};
+    tp_trop_options topt = {.max = o.max, .engine = o.engine, .max_cdd_points = o.max_cdd_points,
+                             .max_cells = o.max_cells};
     tp_trop T;
     tp_trop_init(&T);
     tp_status st;

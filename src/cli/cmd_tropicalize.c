@@ -61,6 +61,7 @@ static const char help_text[] =
     "  --max-cdd-points N  refuse inputs that only the cddlib engine can take (more\n"
     "                    than 3 variables, lower-dimensional Newton polytopes) with\n"
     "                    more than N distinct points (default 3000)\n"
+    "  --max-cells N     refuse subdivisions with more than N faces (default 5000000)\n"
     "\n"
     "exit status: 0 success, 2 bad input or usage, 1 other failures\n";
 
@@ -171,7 +172,8 @@ int cmd_tropicalize(int argc, char **argv)
     cli_protect_input(o.input);
     cli_protect_input(o.points);
 
-    tp_trop_options topt = {.max = o.max, .engine = o.engine, .max_cdd_points = o.max_cdd_points};
+    tp_trop_options topt = {.max = o.max, .engine = o.engine, .max_cdd_points = o.max_cdd_points,
+                             .max_cells = o.max_cells};
     tp_error err;
     tp_error_init(&err, NULL);
     double t0 = now_ms(), t_parse = 0, t_trop = 0, t_write = 0;

@@ -171,6 +171,11 @@ int cli_common_option(cli_opts *o, int argc, char **argv, int *i)
             return -1;
         return parse_count(cmd, "--max-depth", v, &o->limits.max_depth);
     }
+    if (is_option(arg, "--max-cells")) {
+        if (!(v = option_value(cmd, "--max-cells", argc, argv, i)))
+            return -1;
+        return parse_count(cmd, "--max-cells", v, &o->max_cells);
+    }
     if (is_option(arg, "--max-cdd-points")) {
         if (!(v = option_value(cmd, "--max-cdd-points", argc, argv, i)))
             return -1;

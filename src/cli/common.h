@@ -27,6 +27,7 @@ typedef struct {
     bool timings;            /* --timings */
     tp_parse_options limits; /* --max-terms, --max-depth, --max-digits, --max-polys */
     size_t max_cdd_points;   /* --max-cdd-points (0: the library's default) */
+    size_t max_cells;        /* --max-cells (0: the library's default) */
 } cli_opts;
 
 /* cli_common_option: if argv[*i] is one of the common options above, consume it (and

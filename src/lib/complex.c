@@ -72,14 +72,12 @@ void tp_complex_clear(tp_complex *C)
 {
     for (size_t i = 0; i < C->ncells; i++) {
         tp_complex_cell *c = &C->cells[i];
-        free(c->verts);
-        free(c->rays);
         mpz_clear(c->weight);
         mpz_clear(c->mult);
-        qvec_free(c->interior, C->n);
         free(c->initial_form);
     }
     free(C->cells);
+    free(C->idx_pool);
     zvec_free(C->lin, C->nlin * C->n);
     qvec_free(C->verts, C->nverts * C->n);
     zvec_free(C->rays, C->nrays * C->n);
@@ -93,6 +91,51 @@ void tp_complex_clear(tp_complex *C)
 }
 
 /* ---- small exact helpers -------------------------------------------------------- */
+
+__extension__ typedef __int128 i128;
+
+/* Binary gcd of two unsigned 64-bit values. */
+static uint64_t gcd_u64(uint64_t a, uint64_t b)
+{
+    if (!a)
+        return b;
+    if (!b)
+        return a;
+    int sh = __builtin_ctzll(a | b);
+    a >>= __builtin_ctzll(a);
+    do {
+        b >>= __builtin_ctzll(b);
+        if (a > b) {
+            uint64_t t = a;
+            a = b;
+            b = t;
+        }
+        b -= a;
+    } while (b);
+    return a << sh;
+}
+
+static i128 gcd128(i128 a, i128 b)
+{
+    if (a < 0)
+        a = -a;
+    if (b < 0)
+        b = -b;
+    if ((a >> 64) == 0 && (b >> 64) == 0)
+        return (i128)gcd_u64((uint64_t)a, (uint64_t)b);
+    while (b) {
+        i128 t = a % b;
+        a = b;
+        b = t;
+    }
+    return a;
+}
+
+static bool fits64(i128 v)
+{
+    return v >= -(i128)INT64_MAX && v <= (i128)INT64_MAX;
+}
+
 
 static void make_primitive(mpz_t *v, size_t n)
 {
@@ -224,10 +267,90 @@ static void exp_diff(mpz_t *out, const tp_points *P, size_t i, size_t j)
     mpz_clear(t);
 }
 
+/* minors_gcd of (a_hi - a_lo, a_p - a_lo) in int64/int128; false on overflow. */
+static bool area64(mpz_t out, const tp_points *P, size_t hi, size_t lo, size_t p)
+{
+    size_t n = P->n;
+    if (n > 8)
+        return false;
+    int64_t x[8], y[8];
+    for (size_t k = 0; k < n; k++)
+        if (__builtin_sub_overflow(P->exps[hi * n + k], P->exps[lo * n + k], &x[k]) ||
+            __builtin_sub_overflow(P->exps[p * n + k], P->exps[lo * n + k], &y[k]))
+            return false;
+    i128 g = 0;
+    for (size_t i = 0; i < n; i++)
+        for (size_t j = i + 1; j < n; j++) {
+            i128 m = (i128)x[i] * y[j] - (i128)x[j] * y[i]; /* |m| < 2^127 */
+            g = gcd128(g, m);
+        }
+    if (!fits64(g))
+        return false;
+    mpz_set_si(out, (long)g);
+    return true;
+}
+
 /* The two extreme points of a collinear point set and its lattice length. */
+static int64_t gcd64(int64_t a, int64_t b)
+{
+    uint64_t x = a < 0 ? (uint64_t)0 - (uint64_t)a : (uint64_t)a;
+    uint64_t y = b < 0 ? (uint64_t)0 - (uint64_t)b : (uint64_t)b;
+    while (y) {
+        uint64_t t = x % y;
+        x = y;
+        y = t;
+    }
+    return (int64_t)x; /* callers only pass differences that fit, so x < 2^63 */
+}
+
+/* edge_extremes without GMP: false when some intermediate would overflow int64. */
+static bool edge_extremes64(const tp_points *P, const size_t *pts, size_t npts,
+                            size_t *lo, size_t *hi, mpz_t len)
+{
+    size_t n = P->n;
+    if (n > 8)
+        return false;
+    int64_t d[8];
+    const int64_t *e0 = &P->exps[pts[0] * n], *e1 = &P->exps[pts[1] * n];
+    for (size_t k = 0; k < n; k++)
+        if (__builtin_sub_overflow(e1[k], e0[k], &d[k]))
+            return false;
+    int64_t blo = 0, bhi = 0;
+    size_t ilo = pts[0], ihi = pts[0];
+    for (size_t q = 0; q < npts; q++) {
+        const int64_t *e = &P->exps[pts[q] * n];
+        int64_t s = 0, m;
+        for (size_t k = 0; k < n; k++)
+            if (__builtin_mul_overflow(e[k], d[k], &m) || __builtin_add_overflow(s, m, &s))
+                return false;
+        if (q == 0 || s < blo) {
+            blo = s;
+            ilo = pts[q];
+        }
+        if (q == 0 || s > bhi) {
+            bhi = s;
+            ihi = pts[q];
+        }
+    }
+    const int64_t *a = &P->exps[ihi * n], *b = &P->exps[ilo * n];
+    int64_t g = 0;
+    for (size_t k = 0; k < n; k++) {
+        int64_t t;
+        if (__builtin_sub_overflow(a[k], b[k], &t) || t == INT64_MIN)
+            return false;
+        g = gcd64(g, t);
+    }
+    *lo = ilo;
+    *hi = ihi;
+    mpz_set_si(len, (long)g);
+    return true;
+}
+
 static void edge_extremes(const tp_points *P, const size_t *pts, size_t npts, size_t *lo,
                           size_t *hi, mpz_t len)
 {
+    if (edge_extremes64(P, pts, npts, lo, hi, len))
+        return;
     size_t n = P->n;
     mpz_t *d = zvec_new(n);
     mpz_t s, best_lo, best_hi, t;
@@ -359,6 +482,21 @@ static int cmp_size(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
+/* Ascending sort: insertion sort for the short lists cells have, qsort beyond. */
+static void sort_small(size_t *v, size_t m)
+{
+    if (m > 16) {
+        qsort(v, m, sizeof *v, cmp_size);
+        return;
+    }
+    for (size_t i = 1; i < m; i++) {
+        size_t x = v[i], k = i;
+        for (; k > 0 && v[k - 1] > x; k--)
+            v[k] = v[k - 1];
+        v[k] = x;
+    }
+}
+
 static int cmp_list(const size_t *a, size_t na, const size_t *b, size_t nb)
 {
     size_t m = na < nb ? na : nb;
@@ -386,27 +524,231 @@ static tp_status nomem(tp_error *err)
     return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (tropical complex)");
 }
 
-/* Relative interior point: centroid of the vertices plus the sum of the rays. */
-static void interior_point(mpq_t *out, const tp_hull *H, const tp_subdiv_cell *s, size_t n)
+/* num/den (den > 0) reduced; false unless both fit in int64 (|x| <= INT64_MAX). */
+static bool q_reduce(i128 *num, i128 *den)
 {
+    if (fits64(*num) && fits64(*den)) {
+        /* 64-bit arithmetic: the common case, and much cheaper than 128-bit division */
+        int64_t a = (int64_t)*num, b = (int64_t)*den;
+        uint64_t ua = a < 0 ? (uint64_t)0 - (uint64_t)a : (uint64_t)a;
+        int64_t g = (int64_t)gcd_u64(ua, (uint64_t)b);
+        if (g > 1) {
+            a /= g;
+            b /= g;
+        }
+        *num = a;
+        *den = b;
+        return true;
+    }
+    i128 g = gcd128(*num, *den);
+    if (g > 1) {
+        *num /= g;
+        *den /= g;
+    }
+    return fits64(*num) && fits64(*den);
+}
+
+/* tp_complex_interior with int64 rationals; false when a value leaves int64 (the
+ * caller then uses GMP). */
+static bool interior64(mpq_t *out, const tp_complex *C, const tp_complex_cell *c)
+{
+    size_t n = C->n;
+    if (c->nverts == 1 && c->nrays == 0) {
+        for (size_t j = 0; j < n; j++)
+            mpq_set(out[j], C->verts[c->verts[0] * n + j]);
+        return true;
+    }
+    for (size_t j = 0; j < n; j++) {
+        i128 num = 0, den = 1;
+        for (size_t v = 0; v < c->nverts; v++) {
+            mpq_srcptr w = C->verts[c->verts[v] * n + j];
+            if (!mpz_fits_slong_p(mpq_numref(w)) || !mpz_fits_slong_p(mpq_denref(w)))
+                return false;
+            i128 a = mpz_get_si(mpq_numref(w)), b = mpz_get_si(mpq_denref(w));
+            num = num * b + a * den;
+            den = den * b;
+            if (!q_reduce(&num, &den))
+                return false;
+        }
+        if (c->nverts > 1) {
+            den *= (i128)c->nverts;
+            if (!q_reduce(&num, &den))
+                return false;
+        }
+        for (size_t r = 0; r < c->nrays; r++) {
+            mpz_srcptr u = C->rays[c->rays[r] * n + j];
+            if (!mpz_fits_slong_p(u))
+                return false;
+            num += (i128)mpz_get_si(u) * den;
+            if (!fits64(num))
+                return false;
+        }
+        mpz_set_si(mpq_numref(out[j]), (long)num);
+        mpz_set_si(mpq_denref(out[j]), (long)den);
+    }
+    return true;
+}
+
+/* The interior point of c as reduced int64 fractions num[j]/den[j] (n <= 8); false
+ * when a value leaves int64. */
+static bool interior_frac64(const tp_complex *C, const tp_complex_cell *c, int64_t *num,
+                            int64_t *den)
+{
+    size_t n = C->n;
+    for (size_t j = 0; j < n; j++) {
+        i128 a = 0, b = 1;
+        for (size_t v = 0; v < c->nverts; v++) {
+            mpq_srcptr w = C->verts[c->verts[v] * n + j];
+            if (!mpz_fits_slong_p(mpq_numref(w)) || !mpz_fits_slong_p(mpq_denref(w)))
+                return false;
+            i128 x = mpz_get_si(mpq_numref(w)), y = mpz_get_si(mpq_denref(w));
+            a = a * y + x * b;
+            b = b * y;
+            if (!q_reduce(&a, &b))
+                return false;
+        }
+        if (c->nverts > 1) {
+            b *= (i128)c->nverts;
+            if (!q_reduce(&a, &b))
+                return false;
+        }
+        for (size_t r = 0; r < c->nrays; r++) {
+            mpz_srcptr u = C->rays[c->rays[r] * n + j];
+            if (!mpz_fits_slong_p(u))
+                return false;
+            a += (i128)mpz_get_si(u) * b;
+            if (!fits64(a))
+                return false;
+        }
+        num[j] = (int64_t)a;
+        den[j] = (int64_t)b;
+    }
+    return true;
+}
+
+static void cell_interior(const tp_complex *C, const tp_complex_cell *c, mpq_t *out)
+{
+    if (interior64(out, C, c))
+        return;
+    size_t n = C->n;
     mpq_t t;
     mpq_init(t);
     for (size_t j = 0; j < n; j++)
         mpq_set_ui(out[j], 0, 1);
-    for (size_t v = 0; v < s->nlower; v++)
+    for (size_t v = 0; v < c->nverts; v++)
         for (size_t j = 0; j < n; j++)
-            mpq_add(out[j], out[j], H->lower[s->lower[v]].w[j]);
-    if (s->nlower > 1) {
-        mpq_set_ui(t, (unsigned long)s->nlower, 1);
+            mpq_add(out[j], out[j], C->verts[c->verts[v] * n + j]);
+    if (c->nverts > 1) {
+        mpq_set_ui(t, (unsigned long)c->nverts, 1);
         for (size_t j = 0; j < n; j++)
             mpq_div(out[j], out[j], t);
     }
-    for (size_t r = 0; r < s->nsides; r++)
+    for (size_t r = 0; r < c->nrays; r++)
         for (size_t j = 0; j < n; j++) {
-            mpq_set_z(t, H->sides[s->sides[r]].u[j]);
+            mpq_set_z(t, C->rays[c->rays[r] * n + j]);
             mpq_add(out[j], out[j], t);
         }
     mpq_clear(t);
+}
+
+void tp_complex_interior(const tp_complex *C, size_t i, mpq_t *out)
+{
+    cell_interior(C, &C->cells[i], out);
+}
+
+/* check_balance for n = 2 (Phi the identity) in int64/int128: 1 balanced, 0 not,
+ * -1 when some value overflows (the caller then uses GMP). Same arithmetic as the
+ * GMP path: u_e is the primitive integer vector along q_e - p. */
+static int balance2_fast(const tp_subdiv *S, const tp_subdiv_cell *sig, const size_t *eoff,
+                         const size_t *eids, const bool *mark, const size_t *cell_of_sub,
+                         const tp_complex *C, size_t sc)
+{
+    int64_t pn[2], pd[2], qn[2], qd[2];
+    if (!interior_frac64(C, &C->cells[cell_of_sub[sc]], pn, pd))
+        return -1;
+    i128 sum[2] = {0, 0};
+    size_t f = sig->lower[0], nadj = 0;
+    for (size_t q = eoff[f]; q < eoff[f + 1]; q++) {
+        const tp_subdiv_cell *e = &S->cells[eids[q]];
+        bool inside = true;
+        for (size_t t = 0; t < e->npts && inside; t++)
+            inside = mark[e->pts[t]];
+        if (!inside)
+            continue;
+        nadj++;
+        const tp_complex_cell *ce = &C->cells[cell_of_sub[eids[q]]];
+        if (!mpz_fits_slong_p(ce->weight) || !interior_frac64(C, ce, qn, qd))
+            return -1;
+        /* d_j = qn/qd - pn/pd = x_j / y_j, y_j > 0 */
+        i128 x[2], y[2];
+        for (int j = 0; j < 2; j++) {
+            x[j] = (i128)qn[j] * pd[j] - (i128)pn[j] * qd[j];
+            y[j] = (i128)qd[j] * pd[j];
+            i128 g = gcd128(x[j], y[j]);
+            if (g > 1) {
+                x[j] /= g;
+                y[j] /= g;
+            }
+        }
+        /* direction (x0 / y0, x1 / y1) ~ (x0 (l / y0), x1 (l / y1)), l = lcm(y0, y1) */
+        i128 gy = gcd128(y[0], y[1]);
+        i128 u[2];
+        if (__builtin_mul_overflow(x[0], y[1] / gy, &u[0]) ||
+            __builtin_mul_overflow(x[1], y[0] / gy, &u[1]))
+            return -1;
+        i128 g = gcd128(u[0], u[1]);
+        if (g > 1) {
+            u[0] /= g;
+            u[1] /= g;
+        }
+        i128 wgt = mpz_get_si(ce->weight), m;
+        for (int j = 0; j < 2; j++)
+            if (__builtin_mul_overflow(wgt, u[j], &m) ||
+                __builtin_add_overflow(sum[j], m, &sum[j]))
+                return -1;
+    }
+    return nadj >= 3 && sum[0] == 0 && sum[1] == 0;
+}
+
+/* Scratch space of check_balance, set up once per complex. */
+typedef struct {
+    size_t n;
+    mpz_t *x, *y, *A, *u;
+    mpq_t *dq, *pin, *qin;
+    mpq_t acc, im[2];
+    mpz_t sum[2], pr[2], g;
+} bal_ws;
+
+static void bal_ws_clear(bal_ws *w)
+{
+    zvec_free(w->x, w->n);
+    zvec_free(w->y, w->n);
+    zvec_free(w->A, 2 * w->n);
+    zvec_free(w->u, w->n);
+    qvec_free(w->dq, w->n);
+    qvec_free(w->pin, w->n);
+    qvec_free(w->qin, w->n);
+    mpq_clears(w->acc, w->im[0], w->im[1], NULL);
+    mpz_clears(w->sum[0], w->sum[1], w->pr[0], w->pr[1], w->g, NULL);
+}
+
+static bool bal_ws_init(bal_ws *w, size_t n)
+{
+    w->n = n;
+    w->x = zvec_new(n);
+    w->y = zvec_new(n);
+    w->A = zvec_new(2 * n);
+    w->u = zvec_new(n);
+    w->dq = qvec_new(n);
+    w->pin = qvec_new(n);
+    w->qin = qvec_new(n);
+    mpq_inits(w->acc, w->im[0], w->im[1], NULL);
+    mpz_inits(w->sum[0], w->sum[1], w->pr[0], w->pr[1], w->g, NULL);
+    if (!w->x || !w->y || !w->A || !w->u || !w->dq || !w->pin || !w->qin) {
+        bal_ws_clear(w);
+        return false;
+    }
+    return true;
 }
 
 /* Balancing at the codimension-2 cell dual to the 2-cell `sc`. `edges_of_facet`
@@ -414,60 +756,61 @@ static void interior_point(mpq_t *out, const tp_hull *H, const tp_subdiv_cell *s
 static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc,
                                const size_t *eoff, const size_t *eids, bool *mark,
                                const size_t *cell_of_sub, const tp_complex *C,
-                               bool *balanced)
+                               bal_ws *w, bool *balanced)
 {
     const tp_subdiv_cell *sig = &S->cells[sc];
     size_t n = P->n;
     tp_status st = TP_OK;
     *balanced = false;
-    /* Two differences spanning sigma's plane. */
-    mpz_t *x = zvec_new(n), *y = zvec_new(n), *A = zvec_new(2 * n);
     mpz_t *K = NULL, *Phi = NULL;
-    mpq_t *dq = qvec_new(n);
-    mpz_t *u = zvec_new(n);
-    mpz_t sum[2], img[2], den, tt;
-    mpz_inits(sum[0], sum[1], img[0], img[1], den, tt, NULL);
-    mpq_t acc;
-    mpq_init(acc);
-    if (!x || !y || !A || !dq || !u) {
-        st = TP_ENOMEM;
-        goto out;
+    mpz_t *x = w->x, *y = w->y, *A = w->A;
+    mpq_t *dq = w->dq;
+    mpz_set_ui(w->sum[0], 0);
+    mpz_set_ui(w->sum[1], 0);
+    if (sig->npts < 3)
+        return TP_EINTERNAL;
+    /* For n = 2 sigma spans the whole plane: W = 0 and Phi is the identity, so the
+     * plane test and the two kernels are skipped. */
+    if (n != 2) {
+        /* Two differences spanning sigma's plane. */
+        exp_diff(x, P, sig->pts[1], sig->pts[0]);
+        bool found = false;
+        for (size_t t = 2; t < sig->npts && !found; t++) {
+            exp_diff(y, P, sig->pts[t], sig->pts[0]);
+            minors_gcd(w->g, x, y, n);
+            found = mpz_sgn(w->g) != 0;
+        }
+        if (!found)
+            return TP_EINTERNAL;
+        for (size_t k = 0; k < n; k++) {
+            mpz_set(A[k], x[k]);
+            mpz_set(A[n + k], y[k]);
+        }
+        size_t nk = int_kernel(A, 2, n, &K);
+        if (nk == SIZE_MAX)
+            return TP_ENOMEM;
+        size_t nphi = int_kernel(K, nk, n, &Phi);
+        zvec_free(K, nk * n);
+        if (nphi == SIZE_MAX)
+            return TP_ENOMEM;
+        if (nphi != 2) {
+            zvec_free(Phi, nphi * n);
+            return TP_EINTERNAL;
+        }
     }
-    exp_diff(x, P, sig->pts[1], sig->pts[0]);
-    bool found = false;
-    for (size_t t = 2; t < sig->npts && !found; t++) {
-        exp_diff(y, P, sig->pts[t], sig->pts[0]);
-        mpz_t g;
-        mpz_init(g);
-        minors_gcd(g, x, y, n);
-        found = mpz_sgn(g) != 0;
-        mpz_clear(g);
-    }
-    if (!found) {
-        st = TP_EINTERNAL;
-        goto out;
-    }
-    for (size_t k = 0; k < n; k++) {
-        mpz_set(A[k], x[k]);
-        mpz_set(A[n + k], y[k]);
-    }
-    size_t nk = int_kernel(A, 2, n, &K);
-    if (nk == SIZE_MAX) {
-        st = TP_ENOMEM;
-        goto out;
-    }
-    size_t nphi = int_kernel(K, nk, n, &Phi);
-    if (nphi == SIZE_MAX) {
-        st = TP_ENOMEM;
-        goto out;
-    }
-    if (nphi != 2) {
-        st = TP_EINTERNAL;
-        goto out;
-    }
-    mpq_t *p = C->cells[cell_of_sub[sc]].interior;
     for (size_t t = 0; t < sig->npts; t++)
         mark[sig->pts[t]] = true;
+    if (n == 2) {
+        int fast = balance2_fast(S, sig, eoff, eids, mark, cell_of_sub, C, sc);
+        if (fast >= 0) {
+            for (size_t t = 0; t < sig->npts; t++)
+                mark[sig->pts[t]] = false;
+            *balanced = fast == 1;
+            return TP_OK;
+        }
+    }
+    mpq_t *p = w->pin;
+    cell_interior(C, &C->cells[cell_of_sub[sc]], p);
     /* Edges of sigma: subdivision edges inside one lower facet containing sigma whose
      * points all lie in sigma. */
     size_t f = sig->lower[0];
@@ -481,40 +824,32 @@ static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc
             continue;
         nadj++;
         tp_complex_cell *ce = &C->cells[cell_of_sub[eids[q]]];
-        for (size_t j = 0; j < n; j++)
-            mpq_sub(dq[j], ce->interior[j], p[j]);
-        /* img = Phi(dq), as a primitive integer vector in Z^2 */
-        mpq_t im[2];
-        mpq_inits(im[0], im[1], NULL);
-        for (size_t r = 0; r < 2; r++)
-            for (size_t j = 0; j < n; j++) {
-                mpq_set_z(acc, Phi[r * n + j]);
-                mpq_mul(acc, acc, dq[j]);
-                mpq_add(im[r], im[r], acc);
+        mpq_t *qi = w->qin;
+        cell_interior(C, ce, qi);
+        /* im = Phi(dq), made a primitive integer vector in Z^2 */
+        if (!Phi) {
+            mpq_sub(w->im[0], qi[0], p[0]);
+            mpq_sub(w->im[1], qi[1], p[1]);
+        } else {
+            for (size_t j = 0; j < n; j++)
+                mpq_sub(dq[j], qi[j], p[j]);
+            for (size_t r = 0; r < 2; r++) {
+                mpq_set_ui(w->im[r], 0, 1);
+                for (size_t j = 0; j < n; j++) {
+                    mpq_set_z(w->acc, Phi[r * n + j]);
+                    mpq_mul(w->acc, w->acc, dq[j]);
+                    mpq_add(w->im[r], w->im[r], w->acc);
+                }
             }
-        mpz_t pr[2];
-        mpz_inits(pr[0], pr[1], NULL);
-        primitive_of_q(pr, im, 2);
+        }
+        primitive_of_q(w->pr, w->im, 2);
         for (size_t r = 0; r < 2; r++)
-            mpz_addmul(sum[r], ce->weight, pr[r]);
-        mpz_clears(pr[0], pr[1], NULL);
-        mpq_clears(im[0], im[1], NULL);
+            mpz_addmul(w->sum[r], ce->weight, w->pr[r]);
     }
     for (size_t t = 0; t < sig->npts; t++)
         mark[sig->pts[t]] = false;
-    *balanced = nadj >= 3 && mpz_sgn(sum[0]) == 0 && mpz_sgn(sum[1]) == 0;
-out:
-    mpq_clear(acc);
-    mpz_clears(sum[0], sum[1], img[0], img[1], den, tt, NULL);
-    zvec_free(x, n);
-    zvec_free(y, n);
-    zvec_free(A, 2 * n);
-    zvec_free(u, n);
-    qvec_free(dq, n);
-    if (K)
-        zvec_free(K, (n - 2) * n);
-    if (Phi)
-        zvec_free(Phi, 2 * n);
+    *balanced = nadj >= 3 && mpz_sgn(w->sum[0]) == 0 && mpz_sgn(w->sum[1]) == 0;
+    zvec_free(Phi, 2 * n);
     return st;
 }
 
@@ -548,17 +883,21 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
     rowref *refs = NULL;
 
     /* Cells, one per subdivision cell of dimension >= 1. */
-    size_t nc = 0;
+    size_t nc = 0, nidx = 0;
     for (size_t s = 0; s < S->ncells; s++)
-        if (S->cells[s].dim >= 1)
+        if (S->cells[s].dim >= 1) {
             nc++;
+            nidx += S->cells[s].nlower + S->cells[s].nsides;
+        }
     C->cells = calloc(nc ? nc : 1, sizeof *C->cells);
+    C->idx_pool = malloc((nidx ? nidx : 1) * sizeof *C->idx_pool);
     cell_of_sub = malloc((S->ncells ? S->ncells : 1) * sizeof *cell_of_sub);
     ray_used = calloc(H->nsides + 1, sizeof *ray_used);
-    if (!C->cells || !cell_of_sub || !ray_used) {
+    if (!C->cells || !C->idx_pool || !cell_of_sub || !ray_used) {
         st = nomem(err);
         goto done;
     }
+    size_t *ip = C->idx_pool;
     for (size_t s = 0; s < S->ncells; s++) {
         const tp_subdiv_cell *sig = &S->cells[s];
         cell_of_sub[s] = SIZE_MAX;
@@ -571,19 +910,15 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
         c->dim = (int)n - sig->dim;
         c->dual = s;
         c->nverts = sig->nlower;
-        c->verts = malloc((c->nverts ? c->nverts : 1) * sizeof *c->verts);
+        c->verts = ip;
+        ip += c->nverts;
         c->nrays = sig->nsides;
-        c->rays = malloc((c->nrays ? c->nrays : 1) * sizeof *c->rays);
-        c->interior = qvec_new(n);
-        if (!c->verts || !c->rays || !c->interior) {
-            st = nomem(err);
-            goto done;
-        }
+        c->rays = ip;
+        ip += c->nrays;
         memcpy(c->verts, sig->lower, c->nverts * sizeof *c->verts);
         memcpy(c->rays, sig->sides, c->nrays * sizeof *c->rays);
         for (size_t r = 0; r < c->nrays; r++)
             ray_used[c->rays[r]] = true;
-        interior_point(c->interior, H, sig, n);
         if (sig->dim == 1) {
             size_t lo, hi;
             edge_extremes(P, sig->pts, sig->npts, &lo, &hi, c->weight);
@@ -691,9 +1026,11 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
                     continue;
                 size_t lo, hi;
                 edge_extremes(P, e->pts, e->npts, &lo, &hi, len);
-                exp_diff(e1, P, hi, lo);
-                exp_diff(e2, P, sig->pts[0], lo);
-                minors_gcd(g, e1, e2, n);
+                if (!area64(g, P, hi, lo, sig->pts[0])) {
+                    exp_diff(e1, P, hi, lo);
+                    exp_diff(e2, P, sig->pts[0], lo);
+                    minors_gcd(g, e1, e2, n);
+                }
                 mpz_add(c->mult, c->mult, g);
             }
             for (size_t t = 0; t < sig->npts; t++)
@@ -707,12 +1044,18 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
     /* Balancing of every codimension-2 cell. */
     C->balanced = true;
     if (d >= 2) {
+        bal_ws ws;
+        if (!bal_ws_init(&ws, n)) {
+            st = nomem(err);
+            goto done;
+        }
         for (size_t s = 0; s < S->ncells; s++) {
             if (S->cells[s].dim != 2)
                 continue;
             bool ok = false;
-            tp_status bs = check_balance(S, P, s, eoff, eids, mark, cell_of_sub, C, &ok);
+            tp_status bs = check_balance(S, P, s, eoff, eids, mark, cell_of_sub, C, &ws, &ok);
             if (bs == TP_ENOMEM) {
+                bal_ws_clear(&ws);
                 st = nomem(err);
                 goto done;
             }
@@ -721,6 +1064,7 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
                 C->nunbalanced++;
             }
         }
+        bal_ws_clear(&ws);
     }
 
     /* Curve invariants (Newton polytope of dimension 2). */
@@ -772,9 +1116,6 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
             mpq_neg(C->verts[i], C->verts[i]);
         for (size_t i = 0; i < C->nrays * n; i++)
             mpz_neg(C->rays[i], C->rays[i]);
-        for (size_t i = 0; i < C->ncells; i++)
-            for (size_t j = 0; j < n; j++)
-                mpq_neg(C->cells[i].interior[j], C->cells[i].interior[j]);
     }
 
     /* Canonical order: sort vertices and rays, remap, sort cells. */
@@ -789,46 +1130,45 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
         for (size_t v = 0; v < C->nverts; v++)
             refs[v] = (rowref){&C->verts[v * n], NULL, n, v};
         qsort(refs, C->nverts, sizeof *refs, cmp_rowref);
-        mpq_t *nv = qvec_new(C->nverts * n);
+        /* permuted by moving the mpq_t structs themselves (no new limbs) */
+        mpq_t *nv = malloc((C->nverts * n + 1) * sizeof *nv);
         if (!nv) {
             st = nomem(err);
             goto done;
         }
         for (size_t k = 0; k < C->nverts; k++) {
             vmap[refs[k].idx] = k;
-            for (size_t j = 0; j < n; j++)
-                mpq_swap(nv[k * n + j], C->verts[refs[k].idx * n + j]);
+            memcpy(&nv[k * n], &C->verts[refs[k].idx * n], n * sizeof *nv);
         }
-        qvec_free(C->verts, C->nverts * n);
+        free(C->verts);
         C->verts = nv;
         for (size_t i = 0; i < C->ncells; i++) {
             tp_complex_cell *c = &C->cells[i];
             for (size_t t = 0; t < c->nverts; t++)
                 c->verts[t] = vmap[c->verts[t]];
-            qsort(c->verts, c->nverts, sizeof *c->verts, cmp_size);
+            sort_small(c->verts, c->nverts);
         }
     }
     {
         for (size_t r = 0; r < C->nrays; r++)
             refs[r] = (rowref){NULL, &C->rays[r * n], n, r};
         qsort(refs, C->nrays, sizeof *refs, cmp_rowref);
-        mpz_t *nrz = zvec_new(C->nrays * n);
+        mpz_t *nrz = malloc((C->nrays * n + 1) * sizeof *nrz);
         if (!nrz) {
             st = nomem(err);
             goto done;
         }
         for (size_t k = 0; k < C->nrays; k++) {
             vmap[refs[k].idx] = k;
-            for (size_t j = 0; j < n; j++)
-                mpz_swap(nrz[k * n + j], C->rays[refs[k].idx * n + j]);
+            memcpy(&nrz[k * n], &C->rays[refs[k].idx * n], n * sizeof *nrz);
         }
-        zvec_free(C->rays, C->nrays * n);
+        free(C->rays);
         C->rays = nrz;
         for (size_t i = 0; i < C->ncells; i++) {
             tp_complex_cell *c = &C->cells[i];
             for (size_t t = 0; t < c->nrays; t++)
                 c->rays[t] = vmap[c->rays[t]];
-            qsort(c->rays, c->nrays, sizeof *c->rays, cmp_size);
+            sort_small(c->rays, c->nrays);
         }
     }
     qsort(C->cells, C->ncells, sizeof *C->cells, cmp_cell);

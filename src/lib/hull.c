@@ -15,6 +15,7 @@ void tp_hull_init(tp_hull *H)
     H->dim = -1;
 }
 
+/* A lower facet's w and pts share one block (w first), owned through w. */
 static void facet_clear(tp_hull_facet *f, size_t n)
 {
     if (f->w) {
@@ -22,7 +23,6 @@ static void facet_clear(tp_hull_facet *f, size_t n)
             mpq_clear(f->w[j]);
         free(f->w);
     }
-    free(f->pts);
 }
 
 static void side_clear(tp_hull_side *s, size_t n)
@@ -61,6 +61,21 @@ static int cmp_size(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
+/* Ascending sort: insertion sort for short lists, qsort beyond. */
+static void sort_small(size_t *v, size_t m)
+{
+    if (m > 16) {
+        qsort(v, m, sizeof *v, cmp_size);
+        return;
+    }
+    for (size_t i = 1; i < m; i++) {
+        size_t x = v[i], k = i;
+        for (; k > 0 && v[k - 1] > x; k--)
+            v[k] = v[k - 1];
+        v[k] = x;
+    }
+}
+
 static size_t *copy_sorted(const size_t *pts, size_t npts)
 {
     size_t *c = malloc((npts ? npts : 1) * sizeof *c);
@@ -68,28 +83,44 @@ static size_t *copy_sorted(const size_t *pts, size_t npts)
         return NULL;
     if (npts)
         memcpy(c, pts, npts * sizeof *c);
-    qsort(c, npts, sizeof *c, cmp_size);
+    sort_small(c, npts);
     return c;
+}
+
+/* Arrays of facets grow geometrically: capacity 64, then the next power of two (the
+ * capacity is a function of the count, so it need not be stored). */
+static bool needs_growth(size_t count, size_t *ncap)
+{
+    if (count == 0) {
+        *ncap = 64;
+        return true;
+    }
+    if (count >= 64 && (count & (count - 1)) == 0) {
+        *ncap = 2 * count;
+        return true;
+    }
+    return false;
 }
 
 tp_status tp_hull_push_lower(tp_hull *H, const size_t *pts, size_t npts, mpq_t *w,
                              tp_error *err)
 {
-    if (H->nlower % 64 == 0) {
-        tp_hull_facet *g = realloc(H->lower, (H->nlower + 64) * sizeof *g);
+    size_t ncap;
+    if (needs_growth(H->nlower, &ncap)) {
+        tp_hull_facet *g = realloc(H->lower, ncap * sizeof *g);
         if (!g)
             return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (lower hull)");
         H->lower = g;
     }
     tp_hull_facet *f = &H->lower[H->nlower];
     memset(f, 0, sizeof *f);
-    f->pts = copy_sorted(pts, npts);
-    f->w = malloc((H->n ? H->n : 1) * sizeof *f->w);
-    if (!f->pts || !f->w) {
-        free(f->pts);
-        free(f->w);
+    f->w = malloc(H->n * sizeof *f->w + (npts ? npts : 1) * sizeof *f->pts);
+    if (!f->w)
         return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (lower hull)");
-    }
+    f->pts = (size_t *)(void *)(f->w + H->n);
+    if (npts)
+        memcpy(f->pts, pts, npts * sizeof *f->pts);
+    sort_small(f->pts, npts);
     f->npts = npts;
     for (size_t j = 0; j < H->n; j++) {
         mpq_init(f->w[j]);
@@ -102,8 +133,9 @@ tp_status tp_hull_push_lower(tp_hull *H, const size_t *pts, size_t npts, mpq_t *
 tp_status tp_hull_push_side(tp_hull *H, const size_t *pts, size_t npts, mpz_t *u,
                             tp_error *err)
 {
-    if (H->nsides % 64 == 0) {
-        tp_hull_side *g = realloc(H->sides, (H->nsides + 64) * sizeof *g);
+    size_t ncap;
+    if (needs_growth(H->nsides, &ncap)) {
+        tp_hull_side *g = realloc(H->sides, ncap * sizeof *g);
         if (!g)
             return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (Newton polytope)");
         H->sides = g;
@@ -408,9 +440,16 @@ tp_status tp_hull_finish(tp_hull *H, tp_error *err)
         tp_hull_reduce_q(H, H->lower[i].w);
     for (size_t i = 0; i < H->nsides; i++)
         tp_hull_reduce_z(H, H->sides[i].u);
-    if (H->nlower > 1)
+    /* engines often emit in order already: sort only when needed */
+    bool sorted = true;
+    for (size_t i = 1; i < H->nlower && sorted; i++)
+        sorted = cmp_facet(&H->lower[i - 1], &H->lower[i]) < 0;
+    if (!sorted)
         qsort(H->lower, H->nlower, sizeof *H->lower, cmp_facet);
-    if (H->nsides > 1)
+    sorted = true;
+    for (size_t i = 1; i < H->nsides && sorted; i++)
+        sorted = cmp_side(&H->sides[i - 1], &H->sides[i]) < 0;
+    if (!sorted)
         qsort(H->sides, H->nsides, sizeof *H->sides, cmp_side);
     return TP_OK;
 }

@@ -21,18 +21,10 @@ void tp_subdiv_init(tp_subdiv *S)
     tp_hull_init(&S->hull);
 }
 
-static void cell_clear(tp_subdiv_cell *c)
-{
-    free(c->pts);
-    free(c->lower);
-    free(c->sides);
-}
-
 void tp_subdiv_clear(tp_subdiv *S)
 {
-    for (size_t i = 0; i < S->ncells; i++)
-        cell_clear(&S->cells[i]);
     free(S->cells);
+    free(S->pool);
     free(S->unused);
     tp_hull_clear(&S->hull);
     tp_subdiv_init(S);
@@ -102,11 +94,19 @@ static int affine_rank(const tp_points *P, const size_t *pts, size_t npts, int u
     return rank;
 }
 
-/* ---- a hash set of point lists ------------------------------------------------------ */
+/* ---- the cells under construction ----------------------------------------------- */
+
+/* Point lists and facet lists of all cells live in one growing array (`arena`); while
+ * it grows, cells refer to it by offsets (pofs / lofs), turned into pointers at the
+ * end. A hash set of point lists (open addressing; a slot holds cell index + 1 in
+ * its low 40 bits and the top 24 bits of the list's hash above, 0 = empty) finds a
+ * cell by its points with one memory access per probe. */
+#define SLOT_IDX(x) ((size_t)((x) & (((uint64_t)1 << 40) - 1)))
+#define SLOT_TAG(h) ((h) >> 40 << 40)
 
 typedef struct {
     size_t cap;      /* power of two */
-    size_t *slot;    /* cell index + 1, 0 = empty */
+    uint64_t *slot;
 } cellset;
 
 static uint64_t hash_pts(const size_t *pts, size_t npts)
@@ -123,26 +123,56 @@ static uint64_t hash_pts(const size_t *pts, size_t npts)
 typedef struct {
     size_t ncells, cap;
     tp_subdiv_cell *cells;
+    size_t *pofs;        /* cap: offset of each cell's points in arena */
+    size_t *lofs;        /* cap: offset of each cell's lower then side facets */
+    size_t *arena;
+    size_t alen, acap;
     cellset set;
 } builder;
 
-static bool same_pts(const tp_subdiv_cell *c, const size_t *pts, size_t npts)
+static inline const size_t *cell_pts(const builder *b, size_t c)
 {
-    return c->npts == npts && memcmp(c->pts, pts, npts * sizeof *pts) == 0;
+    return b->arena + b->pofs[c];
+}
+
+/* Room for m more entries in the arena (it may move). */
+static bool arena_reserve(builder *b, size_t m)
+{
+    if (b->alen + m <= b->acap)
+        return true;
+    size_t ncap = b->acap ? b->acap : 1024;
+    while (ncap < b->alen + m)
+        ncap = ncap / 2 * 3;
+    size_t *g = realloc(b->arena, ncap * sizeof *g);
+    if (!g)
+        return false;
+    b->arena = g;
+    b->acap = ncap;
+    return true;
+}
+
+static bool same_pts(const builder *b, size_t c, const size_t *pts, size_t npts)
+{
+    return b->cells[c].npts == npts &&
+           memcmp(cell_pts(b, c), pts, npts * sizeof *pts) == 0;
 }
 
 static bool set_grow(builder *b)
 {
     size_t ncap = b->set.cap ? b->set.cap * 2 : 1024;
-    size_t *slot = calloc(ncap, sizeof *slot);
+    while (ncap < 2 * (b->ncells + 1))
+        ncap *= 2;
+    if (b->ncells + 1 >= ((uint64_t)1 << 40))
+        return false;
+    uint64_t *slot = calloc(ncap, sizeof *slot);
     if (!slot)
         return false;
     for (size_t i = 0; i < b->ncells; i++) {
-        uint64_t h = hash_pts(b->cells[i].pts, b->cells[i].npts);
+        uint64_t h = hash_pts(cell_pts(b, i), b->cells[i].npts);
         size_t k = (size_t)h & (ncap - 1);
         while (slot[k])
             k = (k + 1) & (ncap - 1);
-        slot[k] = i + 1;
+        slot[k] = SLOT_TAG(h) | (uint64_t)(i + 1);
     }
     free(b->set.slot);
     b->set.slot = slot;
@@ -150,46 +180,58 @@ static bool set_grow(builder *b)
     return true;
 }
 
-/* Find the cell with these points; returns its index or SIZE_MAX. */
-static size_t set_find(const builder *b, const size_t *pts, size_t npts)
+/* Find the cell with these points (hash h); returns its index or SIZE_MAX. */
+static size_t set_find(const builder *b, const size_t *pts, size_t npts, uint64_t h)
 {
     if (!b->set.cap)
         return SIZE_MAX;
-    size_t k = (size_t)hash_pts(pts, npts) & (b->set.cap - 1);
-    while (b->set.slot[k]) {
-        size_t c = b->set.slot[k] - 1;
-        if (same_pts(&b->cells[c], pts, npts))
+    size_t k = (size_t)h & (b->set.cap - 1);
+    uint64_t t = SLOT_TAG(h), x;
+    while ((x = b->set.slot[k]) != 0) {
+        size_t c = SLOT_IDX(x) - 1;
+        if (SLOT_TAG(x) == t && same_pts(b, c, pts, npts))
             return c;
         k = (k + 1) & (b->set.cap - 1);
     }
     return SIZE_MAX;
 }
 
-/* Append a new cell (pts copied); returns its index or SIZE_MAX on no memory. */
-static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts)
+/* Append a new cell (pts copied, hash h); returns its index or SIZE_MAX on no
+ * memory. */
+static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts, uint64_t h)
 {
     if ((b->ncells + 1) * 2 > b->set.cap && !set_grow(b))
         return SIZE_MAX;
     if (b->ncells == b->cap) {
-        size_t ncap = b->cap ? b->cap * 2 : 256;
+        size_t ncap = b->cap ? b->cap / 2 * 3 : 256;
         tp_subdiv_cell *g = realloc(b->cells, ncap * sizeof *g);
         if (!g)
             return SIZE_MAX;
         b->cells = g;
+        size_t *po = realloc(b->pofs, ncap * sizeof *po);
+        if (!po)
+            return SIZE_MAX;
+        b->pofs = po;
+        size_t *lo = realloc(b->lofs, ncap * sizeof *lo);
+        if (!lo)
+            return SIZE_MAX;
+        b->lofs = lo;
         b->cap = ncap;
     }
+    if (!arena_reserve(b, npts))
+        return SIZE_MAX;
     tp_subdiv_cell *c = &b->cells[b->ncells];
     memset(c, 0, sizeof *c);
     c->dim = dim;
     c->npts = npts;
-    c->pts = malloc((npts ? npts : 1) * sizeof *c->pts);
-    if (!c->pts)
-        return SIZE_MAX;
-    memcpy(c->pts, pts, npts * sizeof *pts);
-    size_t k = (size_t)hash_pts(pts, npts) & (b->set.cap - 1);
+    b->pofs[b->ncells] = b->alen;
+    b->lofs[b->ncells] = 0;
+    memcpy(b->arena + b->alen, pts, npts * sizeof *pts);
+    b->alen += npts;
+    size_t k = (size_t)h & (b->set.cap - 1);
     while (b->set.slot[k])
         k = (k + 1) & (b->set.cap - 1);
-    b->set.slot[k] = b->ncells + 1;
+    b->set.slot[k] = SLOT_TAG(h) | (uint64_t)(b->ncells + 1);
     return b->ncells++;
 }
 
@@ -242,14 +284,32 @@ static int cmp_size(const void *a, const void *b)
     return (x > y) - (x < y);
 }
 
-/* Fill c->lower / c->sides: the facets containing every point of c. `count` is a
- * zeroed scratch array over facet ids, `touched` a scratch list; both left clean. */
-static bool set_containing(tp_subdiv_cell *c, const tp_hull *H, const pindex *ix,
+/* Ascending sort: insertion sort for short lists, qsort beyond. */
+static void sort_small(size_t *v, size_t m)
+{
+    if (m > 16) {
+        qsort(v, m, sizeof *v, cmp_size);
+        return;
+    }
+    for (size_t i = 1; i < m; i++) {
+        size_t x = v[i], k = i;
+        for (; k > 0 && v[k - 1] > x; k--)
+            v[k] = v[k - 1];
+        v[k] = x;
+    }
+}
+
+/* Fill the lower / side facet lists of cell ci: the facets containing every point of
+ * it, appended to the arena. `count` is a zeroed scratch array over facet ids,
+ * `touched` a scratch list; both left clean. */
+static bool set_containing(builder *b, size_t ci, const tp_hull *H, const pindex *ix,
                            size_t *count, size_t *touched)
 {
+    tp_subdiv_cell *c = &b->cells[ci];
+    const size_t *pts = cell_pts(b, ci);
     size_t nt = 0;
     for (size_t t = 0; t < c->npts; t++) {
-        size_t p = c->pts[t];
+        size_t p = pts[t];
         for (size_t k = ix->off[p]; k < ix->off[p + 1]; k++) {
             size_t f = ix->ids[k];
             if (count[f]++ == 0)
@@ -264,26 +324,27 @@ static bool set_containing(tp_subdiv_cell *c, const tp_hull *H, const pindex *ix
             else
                 ns++;
         }
-    c->lower = malloc((nl ? nl : 1) * sizeof *c->lower);
-    c->sides = malloc((ns ? ns : 1) * sizeof *c->sides);
-    if (!c->lower || !c->sides) {
+    if (!arena_reserve(b, nl + ns)) {
         for (size_t k = 0; k < nt; k++)
             count[touched[k]] = 0;
         return false;
     }
+    size_t *lower = b->arena + b->alen, *sides = lower + nl;
+    b->lofs[ci] = b->alen;
+    b->alen += nl + ns;
     c->nlower = c->nsides = 0;
     for (size_t k = 0; k < nt; k++) {
         size_t f = touched[k];
         if (count[f] == c->npts) {
             if (f < H->nlower)
-                c->lower[c->nlower++] = f;
+                lower[c->nlower++] = f;
             else
-                c->sides[c->nsides++] = f - H->nlower;
+                sides[c->nsides++] = f - H->nlower;
         }
         count[f] = 0;
     }
-    qsort(c->lower, c->nlower, sizeof *c->lower, cmp_size);
-    qsort(c->sides, c->nsides, sizeof *c->sides, cmp_size);
+    sort_small(lower, c->nlower);
+    sort_small(sides, c->nsides);
     return true;
 }
 
@@ -311,6 +372,14 @@ static int cmp_cell(const void *x, const void *y)
 
 tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp_error *err)
 {
+    return tp_subdiv_build_limited(S, P, engine, 0, err);
+}
+
+tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine engine,
+                                  size_t max_cells, tp_error *err)
+{
+    if (max_cells == 0)
+        max_cells = TP_SUBDIV_MAX_CELLS;
     tp_subdiv_clear(S);
     struct timespec t0, t1;
     clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t0);
@@ -321,6 +390,10 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
         return st;
     const tp_hull *H = &S->hull;
     size_t nfac = H->nlower + H->nsides;
+    /* Finding a face costs about dim^2 rank work in high dimension: count faces in
+     * units of max(1, dim^2 / 4) against the limit. */
+    size_t unit = (size_t)(H->dim > 2 ? H->dim * H->dim / 4 : 1);
+    size_t cell_cap = max_cells / unit;
 
     builder b = {0};
     pindex ix = {0};
@@ -333,10 +406,34 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
         goto done;
     }
 
+    /* Capacity for a plane triangulation with T triangles (about 3T/2 edges and T/2
+     * vertices, 13.5 T list entries); other cases grow from there. */
+    if (!arena_reserve(&b, 14 * H->nlower + 16)) {
+        st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
+        goto done;
+    }
+    b.cap = 3 * H->nlower + H->npoints + 16;
+    b.cells = malloc(b.cap * sizeof *b.cells);
+    b.pofs = malloc(b.cap * sizeof *b.pofs);
+    b.lofs = malloc(b.cap * sizeof *b.lofs);
+    if (!b.cells || !b.pofs || !b.lofs) {
+        st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
+        goto done;
+    }
+    b.set.cap = 1;
+    while (b.set.cap < 2 * b.cap)
+        b.set.cap *= 2;
+    b.set.slot = calloc(b.set.cap, sizeof *b.set.slot);
+    if (!b.set.slot) {
+        st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
+        goto done;
+    }
+
     /* Maximal cells. */
     for (size_t f = 0; f < H->nlower; f++) {
-        size_t c = add_cell(&b, H->dim, H->lower[f].pts, H->lower[f].npts);
-        if (c == SIZE_MAX || !set_containing(&b.cells[c], H, &ix, count, touched)) {
+        size_t c = add_cell(&b, H->dim, H->lower[f].pts, H->lower[f].npts,
+                            hash_pts(H->lower[f].pts, H->lower[f].npts));
+        if (c == SIZE_MAX || !set_containing(&b, c, H, &ix, count, touched)) {
             st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
             goto done;
         }
@@ -348,10 +445,9 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
         for (size_t g = lo; g < hi; g++) {
             /* Count, for each facet touching G, how many of G's points it holds. */
             size_t nt = 0;
-            const tp_subdiv_cell *G = &b.cells[g];
-            size_t gn = G->npts;
+            size_t gn = b.cells[g].npts;
             for (size_t t = 0; t < gn; t++) {
-                size_t p = b.cells[g].pts[t];
+                size_t p = cell_pts(&b, g)[t];
                 for (size_t q = ix.off[p]; q < ix.off[p + 1]; q++) {
                     size_t f = ix.ids[q];
                     if (count[f]++ == 0)
@@ -367,7 +463,7 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
                 size_t fn;
                 const size_t *fp = facet_pts(H, f, &fn);
                 size_t ni = 0, a = 0, c2 = 0;
-                const size_t *gp = b.cells[g].pts;
+                const size_t *gp = cell_pts(&b, g); /* refetched: add_cell may move it */
                 while (a < gn && c2 < fn) {
                     if (gp[a] == fp[c2]) {
                         inter[ni++] = gp[a];
@@ -379,7 +475,8 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
                         c2++;
                     }
                 }
-                if (set_find(&b, inter, ni) != SIZE_MAX)
+                uint64_t h = hash_pts(inter, ni);
+                if (set_find(&b, inter, ni, h) != SIZE_MAX)
                     continue;
                 int d;
                 if (k - 1 == 0)
@@ -394,7 +491,16 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
                 }
                 if (d != k - 1)
                     continue;
-                size_t c = add_cell(&b, k - 1, inter, ni);
+                if (b.ncells >= cell_cap) {
+                    st = tp_error_set(err, TP_ELIMIT, 0, 0,
+                                      "the regular subdivision has more than %zu faces in "
+                                      "dimension %d (the limit is %zu face units, a face "
+                                      "counting (dim^2)/4 of them); raise it with "
+                                      "--max-cells N",
+                                      cell_cap, H->dim, max_cells);
+                    goto done;
+                }
+                size_t c = add_cell(&b, k - 1, inter, ni, h);
                 if (c == SIZE_MAX) {
                     st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
                     goto done;
@@ -405,7 +511,7 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
         }
         /* Containing-facet lists of the new cells. */
         for (size_t c = hi; c < b.ncells; c++)
-            if (!set_containing(&b.cells[c], H, &ix, count, touched)) {
+            if (!set_containing(&b, c, H, &ix, count, touched)) {
                 st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
                 goto done;
             }
@@ -413,11 +519,51 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
         hi = b.ncells;
     }
 
-    qsort(b.cells, b.ncells, sizeof *b.cells, cmp_cell);
+    free(b.set.slot);
+    b.set.slot = NULL;
+    /* Give back unused capacity, then offsets become pointers; then sort. Cells were made in dim-descending blocks,
+     * so only blocks need sorting, and a block already in order is left alone. */
+    if (b.alen && b.alen < b.acap) {
+        size_t *g = realloc(b.arena, b.alen * sizeof *g);
+        if (g) {
+            b.arena = g;
+            b.acap = b.alen;
+        }
+    }
+    if (b.ncells && b.ncells < b.cap) {
+        tp_subdiv_cell *g = realloc(b.cells, b.ncells * sizeof *g);
+        if (g) {
+            b.cells = g;
+            b.cap = b.ncells;
+        }
+    }
+    for (size_t c = 0; c < b.ncells; c++) {
+        tp_subdiv_cell *x = &b.cells[c];
+        x->pts = b.arena + b.pofs[c];
+        x->lower = b.arena + b.lofs[c];
+        x->sides = x->lower + x->nlower;
+    }
+    free(b.pofs);
+    free(b.lofs);
+    b.pofs = b.lofs = NULL;
+    for (size_t s0 = 0; s0 < b.ncells;) {
+        size_t s1 = s0 + 1;
+        bool sorted = true;
+        while (s1 < b.ncells && b.cells[s1].dim == b.cells[s0].dim) {
+            if (sorted && cmp_cell(&b.cells[s1 - 1], &b.cells[s1]) > 0)
+                sorted = false;
+            s1++;
+        }
+        if (!sorted)
+            qsort(b.cells + s0, s1 - s0, sizeof *b.cells, cmp_cell);
+        s0 = s1;
+    }
     S->cells = b.cells;
     S->ncells = b.ncells;
+    S->pool = b.arena;
     b.cells = NULL;
     b.ncells = 0;
+    b.arena = NULL;
 
     S->unused = malloc((H->npoints ? H->npoints : 1) * sizeof *S->unused);
     if (!S->unused) {
@@ -429,9 +575,10 @@ tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp
             S->unused[S->nunused++] = i;
 
 done:
-    for (size_t i = 0; i < b.ncells; i++)
-        cell_clear(&b.cells[i]);
     free(b.cells);
+    free(b.pofs);
+    free(b.lofs);
+    free(b.arena);
     free(b.set.slot);
     free(ix.off);
     free(ix.ids);

@@ -104,7 +104,8 @@ static tp_status run(tp_trop *T, const tp_trop_options *opt, tp_error *err)
         return cst;
     struct timespec t0, t1, t2;
     clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t0);
-    tp_status st = tp_subdiv_build(&T->subdiv, &T->points, opt->engine, err);
+    tp_status st = tp_subdiv_build_limited(&T->subdiv, &T->points, opt->engine,
+                                           opt->max_cells, err);
     clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t1);
     T->ms_hull = T->subdiv.hull_ms;
     T->ms_subdiv = (double)(t1.tv_sec - t0.tv_sec) * 1e3 +

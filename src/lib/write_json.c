@@ -179,11 +179,45 @@ static void put_str(jw *f, const char *s)
     jw_putc(f, '"');
 }
 
+static mpq_t *qvec_new(size_t n)
+{
+    mpq_t *v = malloc((n ? n : 1) * sizeof *v);
+    if (v)
+        for (size_t j = 0; j < n; j++)
+            mpq_init(v[j]);
+    return v;
+}
+
+static void qvec_free(mpq_t *v, size_t n)
+{
+    if (!v)
+        return;
+    for (size_t j = 0; j < n; j++)
+        mpq_clear(v[j]);
+    free(v);
+}
+
 /* Exact rational as a JSON string, optionally negated ("p/q", or "p" when integral,
  * as mpq_out_str prints it). */
 static void put_rat(jw *f, const mpq_t q, bool negate)
 {
     jw_putc(f, '"');
+    if (mpz_fits_slong_p(mpq_numref(q)) && mpz_fits_slong_p(mpq_denref(q))) {
+        long a = mpz_get_si(mpq_numref(q)), b = mpz_get_si(mpq_denref(q));
+        if (negate && a < 0) {
+            jw_u64(f, (uint64_t)0 - (uint64_t)a);
+        } else {
+            if (negate && a > 0)
+                jw_putc(f, '-');
+            jw_i64(f, a);
+        }
+        if (b != 1) {
+            jw_putc(f, '/');
+            jw_i64(f, b);
+        }
+        jw_putc(f, '"');
+        return;
+    }
     bool neg = (mpq_sgn(q) < 0) != negate && mpq_sgn(q) != 0;
     if (neg)
         jw_putc(f, '-');
@@ -319,7 +353,7 @@ static tp_status write_terms(jw *f, const tp_trop *T, tp_error *err)
             tp_coeff_val(v, &p->coeffs[i], &T->field);
             jw_puts(f, ", \"valuation\": ");
             put_rat(f, v, false);
-            jw_printf(f, ", \"used\": %s}", i < P->count && point_used(T, i) ? "true" : "false");
+            jw_puts(f, i < P->count && point_used(T, i) ? ", \"used\": true}" : ", \"used\": false}");
         }
         mpq_clear(v);
     } else {
@@ -330,21 +364,27 @@ static tp_status write_terms(jw *f, const tp_trop *T, tp_error *err)
             /* heights are stored as the lower hull sees them: negated under --max */
             jw_puts(f, ", \"height\": ");
             put_rat(f, P->heights[i], T->max);
-            jw_printf(f, ", \"used\": %s}", point_used(T, i) ? "true" : "false");
+            jw_puts(f, point_used(T, i) ? ", \"used\": true}" : ", \"used\": false}");
         }
     }
     jw_puts(f, "\n  ],\n");
     return TP_OK;
 }
 
-static void write_subdivision(jw *f, const tp_trop *T)
+static bool write_subdivision(jw *f, const tp_trop *T)
 {
     const tp_subdiv *S = &T->subdiv;
     const tp_hull *H = &S->hull;
     size_t n = T->points.n;
     /* subdivision cell -> complex cell dual to it */
     size_t *dual_of = malloc((S->ncells ? S->ncells : 1) * sizeof *dual_of);
-    if (dual_of) {
+    mpq_t *ipt = qvec_new(n);
+    if (!dual_of || !ipt) {
+        free(dual_of);
+        qvec_free(ipt, n);
+        return false;
+    }
+    {
         for (size_t c = 0; c < S->ncells; c++)
             dual_of[c] = SIZE_MAX;
         for (size_t k = 0; k < T->complex.ncells; k++)
@@ -357,14 +397,18 @@ static void write_subdivision(jw *f, const tp_trop *T)
         jw_puts(f, c ? ",\n      " : "\n      ");
         jw_puts(f, "{\"points\": ");
         put_idx_vec(f, sc->pts, sc->npts);
-        jw_printf(f, ", \"dim\": %d, \"normal\": ", sc->dim);
+        jw_puts(f, ", \"dim\": ");
+        jw_i64(f, sc->dim);
+        jw_puts(f, ", \"normal\": ");
         /* a maximal cell lies on exactly one lower facet: its normal is that facet's;
          * a smaller cell's normal is the relative interior point of its dual cell
          * (already in the output convention); a vertex has none */
         if (sc->dim == H->dim && sc->nlower == 1 && sc->lower[0] < H->nlower)
             put_rat_vec(f, H->lower[sc->lower[0]].w, n, T->max);
-        else if (dual_of && dual_of[c] != SIZE_MAX)
-            put_rat_vec(f, T->complex.cells[dual_of[c]].interior, n, false);
+        else if (dual_of[c] != SIZE_MAX) {
+            tp_complex_interior(&T->complex, dual_of[c], ipt);
+            put_rat_vec(f, ipt, n, false);
+        }
         else
             jw_puts(f, "null");
         jw_putc(f, '}');
@@ -374,13 +418,18 @@ static void write_subdivision(jw *f, const tp_trop *T)
     put_idx_vec(f, S->unused, S->nunused);
     jw_puts(f, "\n  },\n");
     free(dual_of);
+    qvec_free(ipt, n);
+    return true;
 }
 
-static void write_complex(jw *f, const tp_trop *T)
+static bool write_complex(jw *f, const tp_trop *T)
 {
     const tp_complex *C = &T->complex;
     const tp_subdiv *S = &T->subdiv;
     size_t n = C->n;
+    mpq_t *ipt = qvec_new(n);
+    if (!ipt)
+        return false;
     jw_printf(f, "  \"complex\": {\n    \"ambient_dim\": %zu,\n    \"dim\": %d,\n", n, C->dim);
     jw_puts(f, "    \"lineality\": [");
     for (size_t k = 0; k < C->nlin; k++) {
@@ -404,7 +453,9 @@ static void write_complex(jw *f, const tp_trop *T)
     for (size_t c = 0; c < C->ncells; c++) {
         const tp_complex_cell *cc = &C->cells[c];
         jw_puts(f, c ? ",\n      " : "\n      ");
-        jw_printf(f, "{\"dim\": %d, \"vertices\": ", cc->dim);
+        jw_puts(f, "{\"dim\": ");
+        jw_i64(f, cc->dim);
+        jw_puts(f, ", \"vertices\": ");
         put_idx_vec(f, cc->verts, cc->nverts);
         jw_puts(f, ", \"rays\": ");
         put_idx_vec(f, cc->rays, cc->nrays);
@@ -415,12 +466,11 @@ static void write_complex(jw *f, const tp_trop *T)
             put_idx_vec(f, S->cells[cc->dual].pts, S->cells[cc->dual].npts);
         else
             jw_puts(f, "[]");
-        jw_printf(f, ", \"dual_cell\": %zu", cc->dual);
+        jw_puts(f, ", \"dual_cell\": ");
+        jw_u64(f, (uint64_t)cc->dual);
         jw_puts(f, ", \"interior\": ");
-        if (cc->interior)
-            put_rat_vec(f, cc->interior, n, false);
-        else
-            jw_puts(f, "null");
+        tp_complex_interior(C, c, ipt);
+        put_rat_vec(f, ipt, n, false);
         jw_puts(f, ", \"initial_form\": ");
         if (cc->initial_form)
             put_str(f, cc->initial_form);
@@ -432,7 +482,9 @@ static void write_complex(jw *f, const tp_trop *T)
         }
         jw_putc(f, '}');
     }
+    qvec_free(ipt, n);
     jw_puts(f, C->ncells ? "\n    ]\n  },\n" : "]\n  },\n");
+    return true;
 }
 
 static void write_invariants(jw *f, const tp_trop *T)
@@ -497,8 +549,11 @@ tp_status tp_write_json(FILE *out, const tp_trop *T, tp_error *err)
         free(f);
         return st;
     }
-    write_subdivision(f, T);
-    write_complex(f, T);
+    if (!write_subdivision(f, T) || !write_complex(f, T)) {
+        jw_flush(f);
+        free(f);
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory writing JSON");
+    }
     write_invariants(f, T);
     jw_puts(f, "}\n");
     jw_flush(f);

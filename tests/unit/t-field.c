@@ -268,7 +268,8 @@ static void fixed_values(void)
         char *r = tp_coeff_residue_str(&a, &F);
         char want[32];
         snprintf(want, sizeof want, "%ld", pv[k].res);
-        tp_check(r && strcmp(r, want) == 0, "residue_7(%s) == %s, got %s", pv[k].q, want, r);
+        tp_check(r && strcmp(r, want) == 0, "residue_7(%s) == %s, got %s", pv[k].q, want,
+                 r ? r : "(null)");
         free(r);
     }
     char d[64];

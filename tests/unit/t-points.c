@@ -27,7 +27,8 @@ static void from_poly(void)
     tp_check(P.count == 4 && P.n == 2, "4 points in Z^2");
     for (size_t k = 0; k < P.count && k < 4; k++) {
         tp_check(mpq_cmp_si(P.heights[k], want[k], 1) == 0, "height %zu", k);
-        tp_check(P.residue[k] && strcmp(P.residue[k], res[k]) == 0, "residue %zu: %s", k, P.residue[k]);
+        tp_check(P.residue[k] && strcmp(P.residue[k], res[k]) == 0, "residue %zu: %s", k,
+                 P.residue[k] ? P.residue[k] : "(null)");
         tp_check(!P.dup[k], "no dup");
     }
     tp_points_clear(&P);
