@@ -548,6 +548,41 @@ static bool q_reduce(i128 *num, i128 *den)
     return fits64(*num) && fits64(*den);
 }
 
+/* Coordinate j of the interior point of c (centroid of the vertices plus the sum of
+ * the rays) as a reduced int64 fraction; false when a value leaves int64. */
+static bool interior_coord64(const tp_complex *C, const tp_complex_cell *c, size_t j,
+                             int64_t *num, int64_t *den)
+{
+    size_t n = C->n;
+    i128 a = 0, b = 1;
+    for (size_t v = 0; v < c->nverts; v++) {
+        mpq_srcptr w = C->verts[c->verts[v] * n + j];
+        if (!mpz_fits_slong_p(mpq_numref(w)) || !mpz_fits_slong_p(mpq_denref(w)))
+            return false;
+        i128 x = mpz_get_si(mpq_numref(w)), y = mpz_get_si(mpq_denref(w));
+        a = a * y + x * b;
+        b = b * y;
+        if (!q_reduce(&a, &b))
+            return false;
+    }
+    if (c->nverts > 1) {
+        b *= (i128)c->nverts;
+        if (!q_reduce(&a, &b))
+            return false;
+    }
+    for (size_t r = 0; r < c->nrays; r++) {
+        mpz_srcptr u = C->rays[c->rays[r] * n + j];
+        if (!mpz_fits_slong_p(u))
+            return false;
+        a += (i128)mpz_get_si(u) * b;
+        if (!fits64(a))
+            return false;
+    }
+    *num = (int64_t)a;
+    *den = (int64_t)b;
+    return true;
+}
+
 /* tp_complex_interior with int64 rationals; false when a value leaves int64 (the
  * caller then uses GMP). */
 static bool interior64(mpq_t *out, const tp_complex *C, const tp_complex_cell *c)
@@ -559,30 +594,9 @@ static bool interior64(mpq_t *out, const tp_complex *C, const tp_complex_cell *c
         return true;
     }
     for (size_t j = 0; j < n; j++) {
-        i128 num = 0, den = 1;
-        for (size_t v = 0; v < c->nverts; v++) {
-            mpq_srcptr w = C->verts[c->verts[v] * n + j];
-            if (!mpz_fits_slong_p(mpq_numref(w)) || !mpz_fits_slong_p(mpq_denref(w)))
-                return false;
-            i128 a = mpz_get_si(mpq_numref(w)), b = mpz_get_si(mpq_denref(w));
-            num = num * b + a * den;
-            den = den * b;
-            if (!q_reduce(&num, &den))
-                return false;
-        }
-        if (c->nverts > 1) {
-            den *= (i128)c->nverts;
-            if (!q_reduce(&num, &den))
-                return false;
-        }
-        for (size_t r = 0; r < c->nrays; r++) {
-            mpz_srcptr u = C->rays[c->rays[r] * n + j];
-            if (!mpz_fits_slong_p(u))
-                return false;
-            num += (i128)mpz_get_si(u) * den;
-            if (!fits64(num))
-                return false;
-        }
+        int64_t num, den;
+        if (!interior_coord64(C, c, j, &num, &den))
+            return false;
         mpz_set_si(mpq_numref(out[j]), (long)num);
         mpz_set_si(mpq_denref(out[j]), (long)den);
     }
@@ -594,35 +608,9 @@ static bool interior64(mpq_t *out, const tp_complex *C, const tp_complex_cell *c
 static bool interior_frac64(const tp_complex *C, const tp_complex_cell *c, int64_t *num,
                             int64_t *den)
 {
-    size_t n = C->n;
-    for (size_t j = 0; j < n; j++) {
-        i128 a = 0, b = 1;
-        for (size_t v = 0; v < c->nverts; v++) {
-            mpq_srcptr w = C->verts[c->verts[v] * n + j];
-            if (!mpz_fits_slong_p(mpq_numref(w)) || !mpz_fits_slong_p(mpq_denref(w)))
-                return false;
-            i128 x = mpz_get_si(mpq_numref(w)), y = mpz_get_si(mpq_denref(w));
-            a = a * y + x * b;
-            b = b * y;
-            if (!q_reduce(&a, &b))
-                return false;
-        }
-        if (c->nverts > 1) {
-            b *= (i128)c->nverts;
-            if (!q_reduce(&a, &b))
-                return false;
-        }
-        for (size_t r = 0; r < c->nrays; r++) {
-            mpz_srcptr u = C->rays[c->rays[r] * n + j];
-            if (!mpz_fits_slong_p(u))
-                return false;
-            a += (i128)mpz_get_si(u) * b;
-            if (!fits64(a))
-                return false;
-        }
-        num[j] = (int64_t)a;
-        den[j] = (int64_t)b;
-    }
+    for (size_t j = 0; j < C->n; j++)
+        if (!interior_coord64(C, c, j, &num[j], &den[j]))
+            return false;
     return true;
 }
 
