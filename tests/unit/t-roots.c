@@ -1,7 +1,8 @@
 /* t-roots.c — unit tests of the roots module: F_p factorisation, square-free
  * decomposition over Q, the complex root finder, series substitution, and whole
  * tp_roots_compute runs (counts, determinism). Reference checks are brute force
- * (irreducibility by trial division over F_p, products multiplied back). */
+ * (irreducibility by trial division over F_p, products multiplied back; common
+ * practice, no source). The published cross-checks are in tests/check/check_*.py. */
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
