@@ -36,6 +36,9 @@ typedef struct {
 int cli_common_option(cli_opts *o, int argc, char **argv, int *i);
 void cli_opts_init(cli_opts *o);
 
+/* cli_tune_heap: the program's allocator policy for large runs (heap.c); call first. */
+void cli_tune_heap(void);
+
 /* cli_read_all: read a whole file ("-" = stdin) into a malloc'ed, NUL-terminated buffer.
  *   returns TP_OK or TP_EIO (message names the file and the system error);
  *   TP_ELIMIT beyond `limit` bytes (0 = 1 GiB). */

@@ -73,6 +73,7 @@ static int unknown(const char *name)
 
 int main(int argc, char **argv)
 {
+    cli_tune_heap();
     if (argc < 2) {
         usage(stderr);
         return 2;

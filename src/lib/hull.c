@@ -64,6 +64,11 @@ static int cmp_size(const void *a, const void *b)
 /* Ascending sort: insertion sort for short lists, qsort beyond. */
 static void sort_small(size_t *v, size_t m)
 {
+    size_t k = 1;
+    while (k < m && v[k - 1] < v[k])
+        k++;
+    if (k >= m)
+        return; /* engines often hand lists over sorted */
     if (m > 16) {
         qsort(v, m, sizeof *v, cmp_size);
         return;

@@ -1,29 +1,30 @@
 /* hull_fast.c — the fast exact lower-hull engine for n = 1, 2, 3 variables.
  *
  * Method: an incremental regular triangulation (cavity insertion, any dimension up to
- * 3) of the exponents lifted by the heights, in a fixed-seed randomized Hilbert/Morton
- * order, located by a stochastic walk. Degeneracy is removed by a symbolic
- * perturbation of the heights only,
+ * 3) of the exponents lifted by the heights, located by a stochastic walk. Points are
+ * inserted in biased randomized rounds, each ordered along a Hilbert (n = 2) or Morton
+ * (n = 3) curve, and renumbered by that rank so that memory is read in order.
+ * Degeneracy is removed by a symbolic perturbation of the heights only,
  *
- *     H_i  =  Omega * [i is a frame point]  +  h_i  +  eps * |a_i|^2  +  eps_2^(1+i),
+ *     H_k  =  Omega * [k is a frame point]  +  h_k  -  eps * |a_k|^2  +  eps_2^(1+k),
  *
- * with Omega infinitely large and eps >> eps_2 infinitely small. The n+1 "frame"
- * points form a simplex strictly containing every exponent, so the triangulation
- * always covers the frame and the real simplices (no frame vertex) triangulate the
- * Newton polytope. Because the orientation determinant is linear in the height
- * column, each predicate is a short sequence of exact sums
+ * with Omega infinitely large, eps >> eps_2 infinitely small and k the rank. The n+1
+ * "frame" points form a simplex strictly containing every exponent, so the
+ * triangulation always covers the frame and the real simplices (no frame vertex)
+ * triangulate the Newton polytope. Because the orientation determinant is linear in
+ * the height column, each predicate is a short sequence of exact sums
  *     S = O * H_q - sum_i lambda_i * H_{v_i},
  * where O is the simplex volume and lambda_i the barycentric numerators of q (exact
- * int128 from int64 coordinates), evaluated level by level: Omega, h, |a|^2, rank.
+ * int64/int128 from the coordinates), evaluated level by level: Omega, h, |a|^2, rank.
  * Heights are scaled to a common denominator; sums use __int128 when the operands fit
  * in 62 bits and GMP otherwise.
  *
- * The eps level (a strictly convex lift) makes every point lying on the true lower
- * hull a vertex of the triangulation, so the exact cells of the regular subdivision
- * are the classes of real simplices glued across faces whose opposite vertices lie on
- * the same lifted hyperplane (checked exactly, unperturbed). Facets of the Newton
- * polytope come from the real faces next to frame simplices, grouped by hyperplane;
- * points above the hull that lie on such a facet are found by locating them.
+ * The eps level (a strictly concave lift) keeps exactly the vertices of the cells of
+ * the true subdivision as vertices of the triangulation, so the exact cells are the
+ * classes of real simplices glued across faces whose opposite vertices lie on the same
+ * lifted hyperplane (checked exactly, unperturbed). The other points on a cell, and
+ * the points on facets of the Newton polytope (found from the real faces next to frame
+ * simplices, grouped by hyperplane), are located once more at the end.
  *
  * Declines (handled = false) for n > 3, a Newton polytope that is not full
  * dimensional, exponent ranges above 2^28, or more than 2^26 points.
@@ -46,7 +47,10 @@ __extension__ typedef unsigned __int128 u128;
 
 typedef struct {
     int n, D;            /* variables, vertices per simplex (n + 1) */
-    size_t np;           /* real points (= P->count, dup points included but unused) */
+    bool small;          /* every coordinate, frame included, below 2^19 */
+    size_t count;        /* input points (P->count) */
+    size_t np;           /* real points: the distinct exponents, numbered by rank */
+    size_t *orig;        /* np: rank -> index in the input */
     int32_t *x;          /* (np + D) * n translated coordinates; frame points at np.. */
     int64_t *h;          /* np scaled heights, when they all fit in 62 bits */
     mpz_t *hz;           /* np scaled heights otherwise (NULL when h is used) */
@@ -66,11 +70,13 @@ typedef struct {
     size_t ncav, capcav, nstk, capstk;
     struct ridge *rid;
     size_t nrid, caprid;
+    int32_t *htab;       /* ridge matching */
+    size_t caphtab;
     mpz_t t1, t2, t3;
 } fh;
 
 struct ridge {
-    int32_t key[NMAX > 1 ? NMAX - 1 : 1];
+    int32_t key[2];      /* the D - 2 <= 2 vertices shared with q, sorted; unused INT32_MAX */
     int32_t s;
     int32_t j;
 };
@@ -117,6 +123,31 @@ static inline i128 orient(const fh *F, const int32_t *v)
     return a0 * m0 - a1 * m1 + a2 * m2;
 }
 
+/* n = 3: a[i] = vertex i of simplex s minus q. */
+static inline void translate3(const fh *F, int32_t s, int32_t q, int64_t a[4][3])
+{
+    const int32_t *sv = &F->sv[(size_t)s * 4];
+    const int32_t *x = pt(F, q);
+    for (int i = 0; i < 4; i++) {
+        const int32_t *p = pt(F, sv[i]);
+        a[i][0] = p[0] - x[0];
+        a[i][1] = p[1] - x[1];
+        a[i][2] = p[2] - x[2];
+    }
+}
+
+/* n = 3, coordinates below 2^19, a[i] = p_i - q: c = a[j] x a[k], then
+ * *lu = a[u] . c and *lv = -(a[v] . c) (cross products below 2^41, dots below 2^63). */
+static inline void half3(int64_t a[4][3], int j, int k, int u, int v, int64_t *lu,
+                         int64_t *lv)
+{
+    int64_t c0 = a[j][1] * a[k][2] - a[j][2] * a[k][1];
+    int64_t c1 = a[j][2] * a[k][0] - a[j][0] * a[k][2];
+    int64_t c2 = a[j][0] * a[k][1] - a[j][1] * a[k][0];
+    *lu = a[u][0] * c0 + a[u][1] * c1 + a[u][2] * c2;
+    *lv = -(a[v][0] * c0 + a[v][1] * c1 + a[v][2] * c2);
+}
+
 /* lambda_i = orientation with vertex i replaced by q; returns O = sum lambda_i. */
 static inline i128 bary(const fh *F, int32_t s, int32_t q, i128 *lam)
 {
@@ -132,6 +163,19 @@ static inline i128 bary(const fh *F, int32_t s, int32_t q, i128 *lam)
         lam[1] = (x0 - a0) * (c[1] - a1) - (x1 - a1) * (c[0] - a0);
         lam[2] = (int64_t)(b[0] - a0) * (x1 - a1) - (int64_t)(b[1] - a1) * (x0 - a0);
         return lam[0] + lam[1] + lam[2];
+    }
+    if (D == 4 && F->small) {
+        /* Translate by q: lambda_i = (-1)^i det(a_j, j != i), a_j = p_j - q (cofactor
+         * expansion of the 4x4 orientation determinant along q's row). Coordinates
+         * below 2^19: cross products below 2^41, each dot product below 2^63. */
+        int64_t a[4][3];
+        translate3(F, s, q, a);
+        int64_t l[4];
+        half3(a, 2, 3, 1, 0, &l[0], &l[1]);
+        half3(a, 0, 1, 3, 2, &l[2], &l[3]);
+        for (int i = 0; i < 4; i++)
+            lam[i] = l[i];
+        return lam[0] + lam[1] + lam[2] + lam[3];
     }
     int32_t v[DMAX];
     memcpy(v, &F->sv[(size_t)s * D], D * sizeof *v);
@@ -245,7 +289,16 @@ static bool conflict(fh *F, int32_t s, int32_t q, i128 O, const i128 *lam, int *
     if (sg != 0)
         return sg < 0;
     /* eps level: heights - eps |a|^2 (strictly concave), so only the vertices of each
-     * cell of the true subdivision stay vertices of the triangulation. */
+     * cell of the true subdivision stay vertices of the triangulation. When q lies in
+     * the closed simplex (every lambda >= 0; q is no vertex, exponents are distinct),
+     * strict concavity already decides: q is above. */
+    if (!anyframe) {
+        bool inside = true;
+        for (int i = 0; i < D && inside; i++)
+            inside = lam[i] >= 0;
+        if (inside)
+            return false;
+    }
     int64_t vv[DMAX] = {0};
     for (int i = 0; i < D; i++)
         vv[i] = is_frame(F, v[i]) ? 0 : sq(F, v[i]);
@@ -311,21 +364,51 @@ static int32_t new_simplex(fh *F)
 
 /* ---- point location and insertion ------------------------------------------------ */
 
-/* Stochastic visibility walk from F->last to a simplex containing q; lam/O filled. */
+/* One walk step for n = 3 with small coordinates (see bary): the numerators come in two
+ * halves sharing a cross product, and the second half is skipped when the first already
+ * shows a face to leave through. Returns that face, or -1 with lam and *O filled. */
+static int step3(const fh *F, int32_t s, int32_t q, i128 *lam, i128 *O, unsigned coin)
+{
+    int64_t a[4][3], l[4] = {0, 0, 0, 0};
+    translate3(F, s, q, a);
+    for (int k = 0; k < 2; k++) {
+        if ((k ^ (int)(coin & 1)) == 0) {
+            half3(a, 2, 3, 1, 0, &l[0], &l[1]);
+            if (l[0] < 0 || l[1] < 0)
+                return l[0] < 0 && (l[1] >= 0 || (coin & 2)) ? 0 : 1;
+        } else {
+            half3(a, 0, 1, 3, 2, &l[2], &l[3]);
+            if (l[2] < 0 || l[3] < 0)
+                return l[2] < 0 && (l[3] >= 0 || (coin & 2)) ? 2 : 3;
+        }
+    }
+    for (int i = 0; i < 4; i++)
+        lam[i] = l[i];
+    *O = (i128)l[0] + l[1] + l[2] + l[3];
+    return -1;
+}
+
 /* Stochastic visibility walk from F->last to a simplex containing q; lam/O filled. */
 static int32_t locate(fh *F, int32_t q, i128 *lam, i128 *O)
 {
     int D = F->D;
     int32_t s = F->last;
+    bool lazy = D == 4 && F->small;
     for (size_t steps = 0;; steps++) {
-        *O = bary(F, s, q, lam);
-        int start = (int)(splitmix(&F->rng) % (uint64_t)D);
+        /* a cheap xorshift step: where to start looking, and ties */
+        F->rng ^= F->rng << 13;
+        F->rng ^= F->rng >> 7;
+        F->rng ^= F->rng << 17;
         int go = -1;
-        for (int k = 0; k < D; k++) {
-            int i = (start + k) % D;
-            if (lam[i] < 0) {
-                go = i;
-                break;
+        if (lazy) {
+            go = step3(F, s, q, lam, O, (unsigned)(F->rng >> 40));
+        } else {
+            *O = bary(F, s, q, lam);
+            int start = (int)(((F->rng >> 32) * (uint64_t)D) >> 32);
+            for (int k = 0; k < D && go < 0; k++) {
+                int i = start + k < D ? start + k : start + k - D;
+                if (lam[i] < 0)
+                    go = i;
             }
         }
         if (go < 0)
@@ -358,6 +441,7 @@ static tp_status insert(fh *F, int32_t q, tp_error *err)
         /* Above the perturbed lower hull. Strictly above the true one, inside a real
          * simplex: it stays off every cell and every facet of the Newton polytope
          * (the hull only moves down, and the polytope only grows). */
+        F->last = s;   /* the next point in curve order is near */
         bool inside = lev0 > 0 && is_real(F, s);
         for (int i = 0; i < D && inside; i++)
             inside = lam[i] > 0;
@@ -442,28 +526,37 @@ static tp_status insert(fh *F, int32_t q, tp_error *err)
             made = ns;
         }
     }
-    if (F->nrid > 48) {
-        qsort(F->rid, F->nrid, sizeof *F->rid, cmp_ridge);
-    } else {
-        for (size_t k = 1; k < F->nrid; k++) {
-            struct ridge t = F->rid[k];
-            size_t l = k;
-            while (l > 0 && cmp_ridge(&F->rid[l - 1], &t) > 0) {
-                F->rid[l] = F->rid[l - 1];
-                l--;
+    /* Glue the new simplices to each other: every ridge key occurs exactly twice; match
+     * the pairs in a small open-addressing hash table. */
+    size_t hcap = 16;
+    while (hcap < 2 * F->nrid)
+        hcap *= 2;
+    if (!grow((void **)&F->htab, &F->caphtab, hcap, sizeof *F->htab))
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
+    memset(F->htab, 0xff, hcap * sizeof *F->htab);   /* -1: empty */
+    size_t matched = 0;
+    for (size_t k = 0; k < F->nrid; k++) {
+        const struct ridge *r = &F->rid[k];
+        uint64_t key = (uint64_t)(uint32_t)r->key[0] << 32 | (uint32_t)r->key[1];
+        size_t hs = (size_t)((key * 0x9e3779b97f4a7c15u) >> 40) & (hcap - 1);
+        for (;; hs = (hs + 1) & (hcap - 1)) {
+            int32_t e = F->htab[hs];
+            if (e == -1) {
+                F->htab[hs] = (int32_t)k;
+                break;
             }
-            F->rid[l] = t;
+            if (e >= 0 && cmp_ridge(&F->rid[e], r) == 0) {
+                const struct ridge *o = &F->rid[e];
+                F->sn[(size_t)o->s * D + o->j] = r->s;
+                F->sn[(size_t)r->s * D + r->j] = o->s;
+                F->htab[hs] = -2;   /* used up; later probes pass over it */
+                matched++;
+                break;
+            }
         }
     }
-    for (size_t k = 0; k + 1 < F->nrid; k += 2) {
-        struct ridge *a = &F->rid[k], *b = &F->rid[k + 1];
-        if (cmp_ridge(a, b) != 0)
-            return tp_error_set(err, TP_EINTERNAL, 0, 0, "fast hull: unmatched ridge");
-        F->sn[(size_t)a->s * D + a->j] = b->s;
-        F->sn[(size_t)b->s * D + b->j] = a->s;
-    }
-    if (F->nrid % 2 != 0)
-        return tp_error_set(err, TP_EINTERNAL, 0, 0, "fast hull: odd ridge count");
+    if (2 * matched != F->nrid)
+        return tp_error_set(err, TP_EINTERNAL, 0, 0, "fast hull: unmatched ridge");
     for (size_t k = 0; k < F->ncav; k++) {
         int32_t c = F->cav[k];
         F->sv[(size_t)c * D] = -1;
@@ -476,31 +569,23 @@ static tp_status insert(fh *F, int32_t q, tp_error *err)
 
 /* ---- insertion order: fixed-seed rounds, each sorted along a space-filling curve --- */
 
-/* Insertion order entries: curve key (32 bits) << 32 | point index (below 2^26). The
- * array is size_t so that emit() can reuse it for point lists. */
+/* Insertion order entries: round (5 bits) << 58 | curve key (32 bits) << 26 | point
+ * index (below 2^26). The array is size_t so that emit() can reuse it for point
+ * lists. */
 _Static_assert(sizeof(size_t) >= 8, "size_t must hold 64 bits");
-static inline int32_t ord_point(size_t e) { return (int32_t)(e & 0xffffffffu); }
+static inline int32_t ord_point(size_t e) { return (int32_t)(e & ((1u << 26) - 1)); }
 
-static int cmp_u64(const void *a, const void *b)
+/* Stable LSD radix sort on bits lo..63 (8 bits a pass; passes over digits equal in
+ * every entry skipped). */
+static void radix_sort(size_t *a, size_t *tmp, size_t m, int lo)
 {
-    size_t x = *(const size_t *)a, y = *(const size_t *)b;
-    return (x > y) - (x < y);
-}
-
-/* LSD radix sort (8 bits a pass; passes over bytes equal in every entry skipped). */
-static void radix_sort(size_t *a, size_t *tmp, size_t m)
-{
-    if (m < 64) {
-        qsort(a, m, sizeof *a, cmp_u64);
-        return;
-    }
     uint64_t all_or = 0, all_and = ~(uint64_t)0;
     for (size_t i = 0; i < m; i++) {
         all_or |= a[i];
         all_and &= a[i];
     }
     size_t *src = a, *dst = tmp;
-    for (int sh = 0; sh < 64; sh += 8) {
+    for (int sh = lo; sh < 64; sh += 8) {
         if ((((all_or ^ all_and) >> sh) & 0xff) == 0)
             continue;
         size_t cnt[257] = {0};
@@ -518,21 +603,20 @@ static void radix_sort(size_t *a, size_t *tmp, size_t m)
         memcpy(a, src, m * sizeof *a);
 }
 
+/* Position along the Hilbert curve of order `bits`, one level a step: the state is the
+ * orientation of the current quadrant (a swap flag, bit 0, and a complement flag, bit 1),
+ * and HILBERT[state << 2 | x bit << 1 | y bit] = digit | next state << 2. The same
+ * numbering as the classic rotate-and-flip loop, without its branches. */
+static const unsigned char HILBERT[16] = {4, 1, 15, 2, 0, 11, 5, 6, 10, 7, 9, 12, 14, 13, 3, 8};
+
 static uint64_t hilbert2(uint64_t x, uint64_t y, int bits)
 {
-    uint64_t d = 0, N = (uint64_t)1 << bits;
-    for (uint64_t s = N / 2; s > 0; s /= 2) {
-        uint64_t rx = (x & s) > 0, ry = (y & s) > 0;
-        d += s * s * ((3 * rx) ^ ry);
-        if (ry == 0) {
-            if (rx == 1) {
-                x = N - 1 - x;
-                y = N - 1 - y;
-            }
-            uint64_t t = x;
-            x = y;
-            y = t;
-        }
+    uint64_t d = 0;
+    unsigned st = 0;
+    for (int l = bits - 1; l >= 0; l--) {
+        unsigned t = HILBERT[st << 2 | (unsigned)((x >> l) & 1) << 1 | (unsigned)((y >> l) & 1)];
+        d = d << 2 | (t & 3);
+        st = t >> 2;
     }
     return d;
 }
@@ -546,12 +630,11 @@ static uint64_t morton3(uint64_t x, uint64_t y, uint64_t z)
 }
 
 /* A 32-bit position along a space-filling curve (coordinates coarsened to fit). */
-static uint64_t curve_key(const fh *F, int32_t i, int bits)
+static uint64_t curve_key(int n, const int64_t *p, int bits)
 {
-    const int32_t *p = pt(F, i);
-    if (F->n == 1)
+    if (n == 1)
         return (uint64_t)p[0];
-    if (F->n == 2) {
+    if (n == 2) {
         int sh = bits > 16 ? bits - 16 : 0;
         return hilbert2((uint64_t)p[0] >> sh, (uint64_t)p[1] >> sh, bits - sh);
     }
@@ -563,6 +646,7 @@ static uint64_t curve_key(const fh *F, int32_t i, int bits)
 
 static void fh_free(fh *F)
 {
+    free(F->orig);
     free(F->x);
     free(F->h);
     if (F->hz) {
@@ -578,23 +662,114 @@ static void fh_free(fh *F)
     free(F->cav);
     free(F->stk);
     free(F->rid);
+    free(F->htab);
     mpz_clears(F->den, F->t1, F->t2, F->t3, NULL);
 }
 
-/* Translated coordinates, frame, scaled heights, |a|^2. Returns false to decline. */
+/* An integer height below 2^61 in absolute value, read without a GMP call (the limbs
+ * are read through gmp.h's inline accessors). */
+static inline bool small_height(const mpq_t q, int64_t *v)
+{
+#if GMP_NUMB_BITS == 64 && GMP_NAIL_BITS == 0
+    mpz_srcptr d = mpq_denref(q), num = mpq_numref(q);
+    if (mpz_size(d) != 1 || mpz_getlimbn(d, 0) != 1)
+        return false;
+    size_t sz = mpz_size(num);
+    if (sz == 0) {
+        *v = 0;
+        return true;
+    }
+    mp_limb_t l = mpz_getlimbn(num, 0);
+    if (sz > 1 || (l >> 61) != 0)
+        return false;
+    *v = mpz_sgn(num) < 0 ? -(int64_t)l : (int64_t)l;
+    return true;
+#else
+    if (mpz_cmp_ui(mpq_denref(q), 1) != 0 || mpz_sizeinbase(mpq_numref(q), 2) > 61)
+        return false;
+    *v = mpz_get_si(mpq_numref(q));
+    return true;
+#endif
+}
+
+/* Points are renumbered by insertion rank: rank k is original point F->orig[k], and
+ * coordinates and heights are stored in rank order, so the insertion loop and the final
+ * location pass read memory sequentially (a cache miss per point otherwise dominated
+ * the running time). Frame points take ranks np..np+n. */
+
+/* Heights in rank order: F->h when every scaled height fits in 62 bits, else F->hz.
+ * scratch holds P->count entries. */
+static tp_status fh_heights(fh *F, const tp_points *P, int64_t *scratch, tp_error *err)
+{
+    size_t np = F->np, count = P->count;
+    /* The common case: integer heights below 2^61, read once in index order, then
+     * gathered by rank. */
+    F->h = malloc((np ? np : 1) * sizeof *F->h);
+    if (!F->h)
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
+    bool simple = true;
+    for (size_t i = 0; i < count && simple; i++) {
+        scratch[i] = 0;
+        if (!P->dup[i])
+            simple = small_height(P->heights[i], &scratch[i]);
+    }
+    mpz_set_ui(F->den, 1);
+    if (simple) {
+        for (size_t k = 0; k < np; k++)
+            F->h[k] = scratch[F->orig[k]];
+        return TP_OK;
+    }
+
+    /* Common denominator, then scaled integer heights. */
+    for (size_t i = 0; i < count; i++)
+        if (!P->dup[i] && mpz_cmp_ui(mpq_denref(P->heights[i]), 1) != 0)
+            mpz_lcm(F->den, F->den, mpq_denref(P->heights[i]));
+    bool fits = true;
+    mpz_t t;
+    mpz_init(t);
+    for (size_t k = 0; k < np && fits; k++) {
+        mpq_srcptr q = P->heights[F->orig[k]];
+        mpz_divexact(t, F->den, mpq_denref(q));
+        mpz_mul(t, t, mpq_numref(q));
+        fits = mpz_sizeinbase(t, 2) <= 61;
+        if (fits)
+            F->h[k] = mpz_get_si(t);
+    }
+    mpz_clear(t);
+    if (fits)
+        return TP_OK;
+    free(F->h);
+    F->h = NULL;
+    F->hz = malloc((np ? np : 1) * sizeof *F->hz);
+    if (!F->hz)
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
+    for (size_t k = 0; k < np; k++) {
+        mpq_srcptr q = P->heights[F->orig[k]];
+        mpz_init(F->hz[k]);
+        mpz_divexact(F->hz[k], F->den, mpq_denref(q));
+        mpz_mul(F->hz[k], F->hz[k], mpq_numref(q));
+    }
+    return TP_OK;
+}
+
+/* Insertion order, translated coordinates in rank order, frame, heights. Sets *ok to
+ * false to decline. */
 static tp_status fh_setup(fh *F, const tp_points *P, bool *ok, tp_error *err)
 {
     int n = F->n;
-    size_t np = F->np;
+    size_t count = P->count;
+    F->count = count;
     *ok = false;
     int64_t lo[NMAX], hi[NMAX];
     for (int j = 0; j < n; j++) {
         lo[j] = INT64_MAX;
         hi[j] = INT64_MIN;
     }
-    for (size_t i = 0; i < np; i++) {
+    size_t np = 0;
+    for (size_t i = 0; i < count; i++) {
         if (P->dup[i])
             continue;
+        np++;
         for (int j = 0; j < n; j++) {
             int64_t a = P->exps[i * n + j];
             if (a < lo[j])
@@ -613,95 +788,64 @@ static tp_status fh_setup(fh *F, const tp_points *P, bool *ok, tp_error *err)
     }
     if (R > RANGE_MAX)
         return TP_OK;
+    F->np = np;
+    int bits = 1;
+    while (bits < 62 && ((int64_t)1 << bits) <= R)
+        bits++;
+
+    /* Biased randomized insertion order: point i goes to the last round with
+     * probability 1/2, the one before with 1/4, ..., the first round keeps about 256
+     * points (a fixed hash of i decides, so the order is deterministic). Within a round
+     * the points follow the space-filling curve. One stable radix sort on
+     * round << 58 | curve << 26 | index orders everything. */
+    F->orig = malloc((np ? np : 1) * sizeof *F->orig);
+    size_t *tmp = malloc((count ? count : 1) * sizeof *tmp);
+    if (!F->orig || !tmp) {
+        free(tmp);
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
+    }
+    int rounds = 0;
+    while (rounds < 26 && ((size_t)256 << rounds) < np)
+        rounds++;
+    size_t m = 0;
+    for (size_t i = 0; i < count; i++)
+        if (!P->dup[i]) {
+            int64_t c[NMAX];
+            for (int j = 0; j < n; j++)
+                c[j] = P->exps[i * n + j] - lo[j];
+            uint64_t hs = 0x5eed7470u ^ ((uint64_t)i * 0x9e3779b97f4a7c15u);
+            uint64_t hv = splitmix(&hs) | ((uint64_t)1 << rounds);
+            uint64_t round = (uint64_t)(rounds - __builtin_ctzll(hv));
+            F->orig[m++] = (size_t)(round << 58 | curve_key(n, c, bits) << 26 | i);
+        }
+    radix_sort(F->orig, tmp, np, 26);
+    for (size_t k = 0; k < np; k++)
+        F->orig[k] = (size_t)ord_point(F->orig[k]);
 
     F->x = malloc((np + (size_t)F->D) * n * sizeof *F->x);
     F->skip = calloc(np ? np : 1, sizeof *F->skip);
-    if (!F->x || !F->skip)
+    if (!F->x || !F->skip) {
+        free(tmp);
         return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
-    for (size_t i = 0; i < np; i++)
+    }
+    for (size_t k = 0; k < np; k++) {
+        if (k + 16 < np)
+            __builtin_prefetch(&P->exps[F->orig[k + 16] * n]);
+        const int64_t *e = &P->exps[F->orig[k] * n];
         for (int j = 0; j < n; j++)
-            F->x[i * n + j] = P->dup[i] ? 0 : (int32_t)(P->exps[i * n + j] - lo[j]);
+            F->x[k * n + j] = (int32_t)(e[j] - lo[j]);
+    }
     /* Frame simplex {x_j >= -1, sum x_j <= n R + 1}, strictly around [0, R]^n. */
+    F->small = n * R + n < ((int64_t)1 << 19);
     for (int k = 0; k < F->D; k++)
         for (int j = 0; j < n; j++)
             F->x[(np + (size_t)k) * n + j] = (k == j + 1) ? (int32_t)(n * R + n) : -1;
 
-    /* The common case in one pass: integer heights below 2^61. */
-    F->h = malloc((np ? np : 1) * sizeof *F->h);
-    if (!F->h)
-        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
-    bool simple = true;
-    for (size_t i = 0; i < np && simple; i++) {
-        F->h[i] = 0;
-        if (P->dup[i])
-            continue;
-        mpz_srcptr num = mpq_numref(P->heights[i]), den = mpq_denref(P->heights[i]);
-        simple = mpz_cmp_ui(den, 1) == 0 && mpz_sizeinbase(num, 2) <= 61;
-        if (simple)
-            F->h[i] = mpz_get_si(num);
-    }
-    if (simple) {
-        mpz_set_ui(F->den, 1);
+    tp_status st = fh_heights(F, P, (int64_t *)(void *)tmp, err);
+    free(tmp);
+    if (st == TP_OK)
         *ok = true;
-        return TP_OK;
-    }
-    free(F->h);
-    F->h = NULL;
-
-    /* Common denominator, then scaled integer heights. */
-    mpz_set_ui(F->den, 1);
-    for (size_t i = 0; i < np; i++)
-        if (!P->dup[i] && mpz_cmp_ui(mpq_denref(P->heights[i]), 1) != 0)
-            mpz_lcm(F->den, F->den, mpq_denref(P->heights[i]));
-    bool fits = true, den1 = mpz_cmp_ui(F->den, 1) == 0;
-    mpz_t t;
-    mpz_init(t);
-    for (size_t i = 0; i < np && fits; i++) {
-        if (P->dup[i])
-            continue;
-        if (den1) {
-            fits = mpz_sizeinbase(mpq_numref(P->heights[i]), 2) <= 61;
-            continue;
-        }
-        mpz_divexact(t, F->den, mpq_denref(P->heights[i]));
-        mpz_mul(t, t, mpq_numref(P->heights[i]));
-        fits = mpz_sizeinbase(t, 2) <= 61;
-    }
-    if (fits) {
-        F->h = malloc((np ? np : 1) * sizeof *F->h);
-        if (!F->h) {
-            mpz_clear(t);
-            return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
-        }
-        for (size_t i = 0; i < np; i++) {
-            F->h[i] = 0;
-            if (P->dup[i])
-                continue;
-            if (den1) {
-                F->h[i] = mpz_get_si(mpq_numref(P->heights[i]));
-                continue;
-            }
-            mpz_divexact(t, F->den, mpq_denref(P->heights[i]));
-            mpz_mul(t, t, mpq_numref(P->heights[i]));
-            F->h[i] = mpz_get_si(t);
-        }
-    } else {
-        F->hz = malloc((np ? np : 1) * sizeof *F->hz);
-        if (!F->hz) {
-            mpz_clear(t);
-            return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
-        }
-        for (size_t i = 0; i < np; i++) {
-            mpz_init(F->hz[i]);
-            if (P->dup[i])
-                continue;
-            mpz_divexact(F->hz[i], F->den, mpq_denref(P->heights[i]));
-            mpz_mul(F->hz[i], F->hz[i], mpq_numref(P->heights[i]));
-        }
-    }
-    mpz_clear(t);
-    *ok = true;
-    return TP_OK;
+    return st;
 }
 
 /* ---- output ---------------------------------------------------------------------- */
@@ -901,7 +1045,49 @@ static bool push_pair(struct pair **v, size_t *len, size_t *cap, int32_t a, int3
     return true;
 }
 
-/* Counting sort of pairs by .a into CSR form: start[a]..start[a+1]. */
+/* Stable radix sort of pairs by .p (points below 2^26: at most three 11-bit passes, a
+ * pass over a digit equal everywhere skipped). */
+static bool sort_pairs_by_point(struct pair *v, size_t len)
+{
+    if (len < 2)
+        return true;
+    struct pair *tmp = malloc(len * sizeof *tmp);
+    if (!tmp)
+        return false;
+    uint32_t all_or = 0, all_and = ~0u;
+    for (size_t k = 0; k < len; k++) {
+        all_or |= (uint32_t)v[k].p;
+        all_and &= (uint32_t)v[k].p;
+    }
+    struct pair *src = v, *dst = tmp;
+    for (int sh = 0; sh < 33; sh += 11) {
+        if ((((all_or ^ all_and) >> sh) & 0x7ff) == 0)
+            continue;
+        size_t cnt[2049] = {0};
+        for (size_t k = 0; k < len; k++)
+            cnt[(((uint32_t)src[k].p >> sh) & 0x7ff) + 1]++;
+        for (int d = 0; d < 2048; d++)
+            cnt[d + 1] += cnt[d];
+        for (size_t k = 0; k < len; k++)
+            dst[cnt[((uint32_t)src[k].p >> sh) & 0x7ff]++] = src[k];
+        struct pair *t = src;
+        src = dst;
+        dst = t;
+    }
+    if (src != v)
+        memcpy(v, src, len * sizeof *v);
+    free(tmp);
+    return true;
+}
+
+static int cmp_size_t(const void *a, const void *b)
+{
+    size_t x = *(const size_t *)a, y = *(const size_t *)b;
+    return (x > y) - (x < y);
+}
+
+/* Counting sort of pairs by .a into CSR form: start[a]..start[a+1] (stable: lists sorted
+ * by point when the pairs were). */
 static bool bucket_pairs(const struct pair *v, size_t len, size_t na, size_t **start,
                          int32_t **pts)
 {
@@ -918,10 +1104,40 @@ static bool bucket_pairs(const struct pair *v, size_t len, size_t na, size_t **s
     return true;
 }
 
+/* The located points of every cell in CSR form, each list ascending: a point's first
+ * cell is firstcell[i] (-1: none), further cells are pairs in cp (sorted by point). */
+static bool bucket_cells(const int32_t *firstcell, size_t count, const struct pair *cp,
+                         size_t ncp, size_t ncell, size_t **start, int32_t **pts)
+{
+    *start = calloc(ncell + 2, sizeof **start);
+    if (!*start)
+        return false;
+    size_t total = ncp;
+    for (size_t i = 0; i < count; i++)
+        if (firstcell[i] >= 0) {
+            total++;
+            (*start)[firstcell[i] + 2]++;
+        }
+    for (size_t k = 0; k < ncp; k++)
+        (*start)[cp[k].a + 2]++;
+    for (size_t a = 0; a < ncell; a++)
+        (*start)[a + 2] += (*start)[a + 1];
+    *pts = malloc((total ? total : 1) * sizeof **pts);
+    if (!*pts)
+        return false;
+    size_t e = 0;
+    for (size_t i = 0; i < count; i++) {
+        if (firstcell[i] >= 0)
+            (*pts)[(*start)[firstcell[i] + 1]++] = (int32_t)i;
+        for (; e < ncp && (size_t)cp[e].p == i; e++)
+            (*pts)[(*start)[cp[e].a + 1]++] = (int32_t)i;
+    }
+    return true;
+}
+
 #define NOMEM() (st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)"))
 
-static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
-                      tp_error *err)
+static tp_status emit(fh *F, tp_hull *H, tp_error *err)
 {
     int n = F->n, D = F->D;
     size_t np = F->np, ns = F->ns;
@@ -936,8 +1152,11 @@ static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
     int32_t *par = (int32_t *)F->mark;
     int32_t *cell = F->freel;
     int32_t *seen = malloc((np ? np : 1) * sizeof *seen);
+    int32_t *firstcell = malloc((F->count ? F->count : 1) * sizeof *firstcell);
     bool *isvert = calloc(np ? np : 1, sizeof *isvert);
-    size_t *buf = NULL;   /* the order array, once step 3 is done with it */
+    size_t *buf = NULL;   /* one output list (original indices) */
+    const size_t *orig = F->orig;
+    size_t nsp_vert = 0;
     int32_t *star = NULL;
     size_t nstar = 0, capstar = 0;
     struct pair *cp = NULL, *sp = NULL;
@@ -947,7 +1166,7 @@ static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
     struct bface *bf = NULL;
     size_t nbf = 0, capbf = 0, ngroups = 0, ncell = 0;
     size_t *gstart = NULL;
-    if (!seen || !isvert) {
+    if (!seen || !isvert || !firstcell) {
         NOMEM();
         goto out;
     }
@@ -1065,10 +1284,11 @@ static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
     for (size_t k = 0; k < nsp; k++)
         vside[vstart[sp[k].p + 1]++] = sp[k].a;
 
+    memset(firstcell, 0xff, (F->count ? F->count : 1) * sizeof *firstcell);   /* -1 */
     /* 3. Every other point: locate it; if it lies on the true lower hull it joins every
      *    cell through its carrier face; if on the boundary, every side through it. */
-    for (size_t k = 0; k < nord; k++) {
-        int32_t p = ord_point(ord[k]);
+    nsp_vert = nsp;
+    for (int32_t p = 0; p < (int32_t)np; p++) {
         if (isvert[p] || F->skip[p])
             continue;
         i128 lam[DMAX], O;
@@ -1127,28 +1347,35 @@ static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
                 r = star[k2];
         if (r >= 0) {
             i128 l2[DMAX];
-            i128 O2 = bary(F, r, p, l2);
-            if (level0(F, &F->sv[(size_t)r * D], p, O2, l2) == 0) {
+            i128 O2 = r == s ? O : bary(F, r, p, l2);
+            if (level0(F, &F->sv[(size_t)r * D], p, O2, r == s ? lam : l2) == 0) {
+                /* the first cell in firstcell, any further ones as pairs */
                 size_t first = ncp;
+                int32_t c0 = -1;
                 for (size_t k2 = 0; k2 < nstar; k2++) {
                     int32_t c = cell[star[k2]];
-                    if (c < 0)
+                    if (c < 0 || c == c0)
                         continue;
+                    if (c0 < 0) {
+                        c0 = c;
+                        continue;
+                    }
                     bool dup = false;
                     for (size_t z = first; z < ncp && !dup; z++)
                         dup = cp[z].a == c;
-                    if (!dup && !push_pair(&cp, &ncp, &capcp, c, p)) {
+                    if (!dup && !push_pair(&cp, &ncp, &capcp, c, (int32_t)orig[p])) {
                         NOMEM();
                         goto out;
                     }
                 }
+                firstcell[orig[p]] = c0;
             }
         }
         if ((ncar < D || !real_s) && ncar > 0 && !is_frame(F, car[0])) {
             for (size_t z = vstart[car[0]]; z < vstart[car[0] + 1]; z++) {
                 int32_t g = vside[z];
                 if (on_face(F, &bf[gstart[g]], p) &&
-                    !push_pair(&sp, &nsp, &capsp, g, p)) {
+                    !push_pair(&sp, &nsp, &capsp, g, (int32_t)orig[p])) {
                     NOMEM();
                     goto out;
                 }
@@ -1156,9 +1383,13 @@ static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
         }
     }
 
-    /* 4. Cells: vertices of their simplices plus the located points. */
-    buf = ord;
-    if (!bucket_pairs(cp, ncp, ncell, &xstart, &xpts)) {
+    /* 4. Cells: vertices of their simplices plus the located points, merged into one
+     *    ascending list. */
+    for (size_t k = 0; k < nsp_vert; k++)
+        sp[k].p = (int32_t)orig[sp[k].p];
+    buf = malloc((np ? np : 1) * sizeof *buf);
+    if (!buf || !sort_pairs_by_point(cp, ncp) || !sort_pairs_by_point(sp, nsp) ||
+        !bucket_cells(firstcell, F->count, cp, ncp, ncell, &xstart, &xpts)) {
         NOMEM();
         goto out;
     }
@@ -1171,12 +1402,32 @@ static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
             for (int i = 0; i < D; i++)
                 if (seen[v[i]] != (int32_t)c) {
                     seen[v[i]] = (int32_t)c;
-                    buf[m++] = (size_t)v[i];
+                    buf[m++] = orig[v[i]];
                 }
         }
-        for (size_t k = xstart[c]; k < xstart[c + 1]; k++) {
-            buf[m++] = (size_t)xpts[k];
-            H->on_hull[xpts[k]] = true;
+        if (m > 16)
+            qsort(buf, m, sizeof *buf, cmp_size_t);
+        else
+            for (size_t i = 1; i < m; i++) {
+                size_t x = buf[i], k = i;
+                for (; k > 0 && buf[k - 1] > x; k--)
+                    buf[k] = buf[k - 1];
+                buf[k] = x;
+            }
+        size_t nx = xstart[c + 1] - xstart[c];
+        if (nx > 0) {
+            /* merge from the back: the vertices move up as the located points go in */
+            const int32_t *xs = &xpts[xstart[c]];
+            size_t i = m, j = nx, o = m + nx;
+            while (j > 0) {
+                if (i > 0 && buf[i - 1] > (size_t)xs[j - 1])
+                    buf[--o] = buf[--i];
+                else
+                    buf[--o] = (size_t)xs[--j];
+            }
+            for (size_t k = 0; k < nx; k++)
+                H->on_hull[xs[k]] = true;
+            m += nx;
         }
         simplex_normal(F, corder[cstart[c]], w);
         st = tp_hull_push_lower(H, buf, m, w, err);
@@ -1185,7 +1436,7 @@ static tp_status emit(fh *F, tp_hull *H, size_t *ord, size_t nord,
     }
     for (size_t i = 0; i < np; i++)
         if (isvert[i])
-            H->on_hull[i] = true;
+            H->on_hull[orig[i]] = true;
 
     /* 5. Sides. */
     if (!bucket_pairs(sp, nsp, ngroups, &sstart, &spts)) {
@@ -1207,6 +1458,8 @@ out:
         mpq_clear(w[j]);
         mpz_clear(u[j]);
     }
+    free(buf);
+    free(firstcell);
     free(seen);
     free(isvert);
     free(star);
@@ -1250,47 +1503,9 @@ tp_status tp_hull_lower_fast(tp_hull *H, const tp_points *P, bool *handled, tp_e
     int D = F.D;
     size_t np = F.np;
 
-    /* insertion order */
-    size_t m = 0;
-    size_t *ord = malloc((np ? np : 1) * sizeof *ord);
-    if (!ord) {
-        fh_free(&F);
-        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
-    }
-    int bits = 1;
-    {
-        int64_t R = 0;
-        for (size_t i = 0; i < np * (size_t)F.n; i++)
-            if (F.x[i] > R)
-                R = F.x[i];
-        while (bits < 62 && ((int64_t)1 << bits) <= R)
-            bits++;
-    }
-    for (size_t i = 0; i < np; i++)
-        if (!P->dup[i]) {
-            ord[m++] = (size_t)curve_key(&F, (int32_t)i, bits) << 32 | i;
-        }
-    uint64_t seed = 0x5eed7470u;
-    for (size_t i = m; i > 1; i--) {
-        size_t j = (size_t)(splitmix(&seed) % i);
-        size_t t = ord[i - 1];
-        ord[i - 1] = ord[j];
-        ord[j] = t;
-    }
-    size_t *tmp = malloc((m / 2 + 256) * sizeof *tmp);   /* the largest round */
-    if (!tmp) {
-        free(ord);
-        fh_free(&F);
-        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
-    }
-    for (size_t lo = 0, hi = m < 256 ? m : 256; lo < m; lo = hi, hi = (2 * hi < m ? 2 * hi : m))
-        radix_sort(ord + lo, tmp, hi - lo);
-    free(tmp);
-
     /* The frame simplex, positively oriented. */
     int32_t s0 = new_simplex(&F);
     if (s0 < 0) {
-        free(ord);
         fh_free(&F);
         return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
     }
@@ -1309,15 +1524,13 @@ tp_status tp_hull_lower_fast(tp_hull *H, const tp_points *P, bool *handled, tp_e
     F.stk = malloc(capst * sizeof *F.stk);
     F.capcav = F.capstk = F.cav && F.stk ? capst : 0;
     if (!F.cav || !F.stk) {
-        free(ord);
         fh_free(&F);
         return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (fast hull)");
     }
-    for (size_t k = 0; k < m && st == TP_OK; k++)
-        st = insert(&F, ord_point(ord[k]), err);
+    for (size_t k = 0; k < np && st == TP_OK; k++)
+        st = insert(&F, (int32_t)k, err);
     if (st == TP_OK)
-        st = emit(&F, H, ord, m, err);
-    free(ord);
+        st = emit(&F, H, err);
     fh_free(&F);
     if (st == TP_OK)
         *handled = true;
