@@ -92,38 +92,59 @@ static int cmp_point(const tp_points *P, size_t a, size_t b)
     return a < b ? -1 : a > b ? 1 : 0;
 }
 
-static void sort_ix(const tp_points *P, size_t *ix, size_t *tmp, size_t n)
+/* A point is a duplicate when another point has the same exponents and a smaller
+ * height (ties: the smaller index); the survivor of each exponent is the minimum of
+ * cmp_point. Expected linear time: exponents are hashed into an open-addressing table
+ * holding each exponent's current survivor. */
+static uint64_t hash_exps(const int64_t *x, size_t n)
 {
-    if (n < 2)
-        return;
-    size_t h = n / 2;
-    sort_ix(P, ix, tmp, h);
-    sort_ix(P, ix + h, tmp, n - h);
-    size_t i = 0, j = h, k = 0;
-    while (i < h && j < n)
-        tmp[k++] = cmp_point(P, ix[j], ix[i]) < 0 ? ix[j++] : ix[i++];
-    while (i < h)
-        tmp[k++] = ix[i++];
-    while (j < n)
-        tmp[k++] = ix[j++];
-    memcpy(ix, tmp, n * sizeof *ix);
+    uint64_t h = 0x74726f7065u;
+    for (size_t j = 0; j < n; j++) {
+        h ^= (uint64_t)x[j];
+        h *= 0x9e3779b97f4a7c15u;
+        h ^= h >> 29;
+    }
+    return h;
 }
 
 void tp_points_mark_dups(tp_points *P)
 {
-    size_t m = P->count;
+    size_t m = P->count, n = P->n;
     if (!P->dup)
         return;
-    size_t *ix = malloc((m ? m : 1) * sizeof *ix), *tmp = malloc((m ? m : 1) * sizeof *tmp);
-    if (!ix || !tmp) {
+    /* exponents strictly increasing in input order (generated grids): nothing to do */
+    bool increasing = true;
+    for (size_t k = 1; k < m && increasing; k++) {
+        const int64_t *x = P->exps + (k - 1) * n, *y = P->exps + k * n;
+        size_t j = 0;
+        while (j < n && x[j] == y[j])
+            j++;
+        increasing = j < n && x[j] < y[j];
+    }
+    if (increasing || n == 0) {
+        for (size_t k = 0; k < m; k++)
+            P->dup[k] = n == 0 && k > 0;
+        if (n == 0 && m > 1) {
+            /* no exponents: every point is the same monomial; keep the minimum */
+            size_t best = 0;
+            for (size_t k = 1; k < m; k++)
+                if (cmp_point(P, k, best) < 0)
+                    best = k;
+            for (size_t k = 0; k < m; k++)
+                P->dup[k] = k != best;
+        }
+        return;
+    }
+    size_t cap = 16;
+    while (cap < 2 * m)
+        cap *= 2;
+    size_t *tab = malloc(cap * sizeof *tab);
+    if (!tab) {
         /* quadratic fallback without memory */
-        free(ix);
-        free(tmp);
         for (size_t a = 0; a < m; a++) {
             P->dup[a] = false;
             for (size_t b = 0; b < m && !P->dup[a]; b++) {
-                if (b == a || memcmp(P->exps + a * P->n, P->exps + b * P->n,
-                                     P->n * sizeof *P->exps) != 0)
+                if (b == a || memcmp(P->exps + a * n, P->exps + b * n, n * sizeof *P->exps) != 0)
                     continue;
                 if (cmp_point(P, b, a) < 0)
                     P->dup[a] = true;
@@ -131,16 +152,29 @@ void tp_points_mark_dups(tp_points *P)
         }
         return;
     }
-    for (size_t k = 0; k < m; k++)
-        ix[k] = k;
-    sort_ix(P, ix, tmp, m);
-    for (size_t k = 0; k < m; k++) {
-        bool same = k > 0 && memcmp(P->exps + ix[k] * P->n, P->exps + ix[k - 1] * P->n,
-                                    P->n * sizeof *P->exps) == 0;
-        P->dup[ix[k]] = same;
+    for (size_t k = 0; k < cap; k++)
+        tab[k] = SIZE_MAX;
+    for (size_t a = 0; a < m; a++) {
+        const int64_t *x = P->exps + a * n;
+        P->dup[a] = false;
+        for (size_t i = (size_t)hash_exps(x, n) & (cap - 1);; i = (i + 1) & (cap - 1)) {
+            size_t r = tab[i];
+            if (r == SIZE_MAX) {
+                tab[i] = a;
+                break;
+            }
+            if (memcmp(P->exps + r * n, x, n * sizeof *x) == 0) {
+                if (cmp_point(P, a, r) < 0) {
+                    P->dup[r] = true;
+                    tab[i] = a;
+                } else {
+                    P->dup[a] = true;
+                }
+                break;
+            }
+        }
     }
-    free(ix);
-    free(tmp);
+    free(tab);
 }
 
 void tp_points_negate_heights(tp_points *P)
@@ -253,6 +287,11 @@ static bool parse_udecimal(const char *s, size_t len, mpq_t q)
 /* Height: [sign] decimal [ '/' [sign] decimal ]. 0 ok, 1 syntax, 3 division by zero. */
 static int parse_height(const char *s, size_t len, mpq_t h)
 {
+    int64_t v;
+    if (parse_i64(s, len, &v) == 0) {   /* the common case, without temporaries */
+        mpq_set_si(h, (long)v, 1);
+        return 0;
+    }
     size_t slash = len;
     for (size_t k = 0; k < len; k++)
         if (s[k] == '/') {
@@ -332,8 +371,6 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
     tp_status st = TP_OK;
     int line = 0;
     size_t pos = 0;
-    mpq_t h;
-    mpq_init(h);
     while (pos < len) {
         line++;
         size_t ls = pos, le = pos;
@@ -470,8 +507,10 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
             }
         }
         field_span *hf = &fs[nfields - 1];
-        int rc = parse_height(text + hf->start, hf->len, h);
+        mpq_init(heights[count]);
+        int rc = parse_height(text + hf->start, hf->len, heights[count]);
         if (rc) {
+            mpq_clear(heights[count]);
             char shown[200];
             show_field(text + hf->start, hf->len, shown, sizeof shown);
             if (rc == 3)
@@ -483,8 +522,6 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
                                   hf->len ? "'" : "");
             goto fail;
         }
-        mpq_init(heights[count]);
-        mpq_set(heights[count], h);
         count++;
     }
     if (count == 0) {
@@ -513,7 +550,6 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
         P->nnames = nnames - 1;
     }
     free(fs);
-    mpq_clear(h);
     tp_points_mark_dups(P);
     return TP_OK;
 fail:
@@ -526,7 +562,6 @@ fail:
             free(names[k]);
     free(names);
     free(fs);
-    mpq_clear(h);
     tp_points_init(P);
     return st;
 }

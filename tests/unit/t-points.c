@@ -7,6 +7,7 @@
 #include <string.h>
 #include "testlib.h"
 #include "trope/points.h"
+#include "ptsbuild.h"
 
 static void from_poly(void)
 {
@@ -84,8 +85,58 @@ static void csv_bad(void)
     }
 }
 
+/* Dup marks against their definition, checked pair by pair: a point is a duplicate when
+ * another point has the same exponents and a smaller height, ties to the smaller index
+ * (the minimum of a monomial's coefficients' valuations wins: common practice, no
+ * source). Small exponent ranges and few heights make duplicates and ties frequent;
+ * grids in increasing order take the shortcut. */
+static void dup_marks(void)
+{
+    tp_rng r;
+    tp_rng_seed(&r, 0x647570);
+    for (int it = 0; it < 400; it++) {
+        size_t n = (size_t)tp_rng_range(&r, 0, 3);
+        size_t count = (size_t)tp_rng_range(&r, 1, it % 10 == 0 ? 3000 : 60);
+        tp_points P;
+        pts_random(&P, &r, n, count, tp_rng_range(&r, 0, it % 3 == 0 ? 40 : 3),
+                   tp_rng_range(&r, 0, 4));
+        size_t bad = 0;
+        for (size_t a = 0; a < count && (count <= 60 || a < 60); a++) {
+            bool want = false;
+            for (size_t b = 0; b < count && !want; b++) {
+                if (b == a)
+                    continue;
+                bool same = true;
+                for (size_t j = 0; j < n && same; j++)
+                    same = P.exps[a * n + j] == P.exps[b * n + j];
+                int c = mpq_cmp(P.heights[b], P.heights[a]);
+                want = same && (c < 0 || (c == 0 && b < a));
+            }
+            bad += want != P.dup[a];
+        }
+        tp_check(bad == 0, "dup marks, case %d (n %zu, %zu points): %zu wrong", it, n, count,
+                 bad);
+        tp_points_clear(&P);
+    }
+    /* an increasing grid has no duplicates */
+    long e[2 * 30], h[30];
+    for (int i = 0; i < 30; i++) {
+        e[2 * i] = i / 6;
+        e[2 * i + 1] = i % 6;
+        h[i] = 1;
+    }
+    tp_points G;
+    pts_make(&G, 2, 30, e, h, NULL);
+    size_t ndup = 0;
+    for (size_t i = 0; i < 30; i++)
+        ndup += G.dup[i];
+    tp_check(ndup == 0, "grid: %zu dup marks", ndup);
+    tp_points_clear(&G);
+}
+
 int main(void)
 {
+    dup_marks();
     from_poly();
     csv_ok();
     csv_bad();
