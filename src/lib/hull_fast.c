@@ -26,8 +26,10 @@
  * the points on facets of the Newton polytope (found from the real faces next to frame
  * simplices, grouped by hyperplane), are located once more at the end.
  *
- * Declines (handled = false) for n > 3, a Newton polytope that is not full
- * dimensional, exponent ranges above 2^28, or more than 2^26 points.
+ * A Newton polytope of dimension d < n (homogeneous input, for one) is worked in d of
+ * the coordinates, on which its span projects injectively (see tp_hull_lower_fast).
+ * Declines (handled = false) for a Newton polytope of dimension above 3, exponent
+ * ranges above 2^28, or more than 2^26 points.
  */
 #include "hull_internal.h"
 
@@ -46,7 +48,11 @@ __extension__ typedef unsigned __int128 u128;
 #define FIT62 ((i128)1 << 62)
 
 typedef struct {
-    int n, D;            /* variables, vertices per simplex (n + 1) */
+    int n, D;            /* dimension worked in (that of the Newton polytope), n + 1 */
+    size_t nfull;        /* variables of the input (n, or more when the Newton polytope
+                            is lower dimensional) */
+    size_t J[NMAX];      /* the input coordinates kept: a projection that is injective
+                            on the affine span of the exponents */
     bool small;          /* every coordinate, frame included, below 2^19 */
     size_t count;        /* input points (P->count) */
     size_t np;           /* real points: the distinct exponents, numbered by rank */
@@ -771,7 +777,7 @@ static tp_status fh_setup(fh *F, const tp_points *P, bool *ok, tp_error *err)
             continue;
         np++;
         for (int j = 0; j < n; j++) {
-            int64_t a = P->exps[i * n + j];
+            int64_t a = P->exps[i * F->nfull + F->J[j]];
             if (a < lo[j])
                 lo[j] = a;
             if (a > hi[j])
@@ -812,7 +818,7 @@ static tp_status fh_setup(fh *F, const tp_points *P, bool *ok, tp_error *err)
         if (!P->dup[i]) {
             int64_t c[NMAX];
             for (int j = 0; j < n; j++)
-                c[j] = P->exps[i * n + j] - lo[j];
+                c[j] = P->exps[i * F->nfull + F->J[j]] - lo[j];
             uint64_t hs = 0x5eed7470u ^ ((uint64_t)i * 0x9e3779b97f4a7c15u);
             uint64_t hv = splitmix(&hs) | ((uint64_t)1 << rounds);
             uint64_t round = (uint64_t)(rounds - __builtin_ctzll(hv));
@@ -830,10 +836,10 @@ static tp_status fh_setup(fh *F, const tp_points *P, bool *ok, tp_error *err)
     }
     for (size_t k = 0; k < np; k++) {
         if (k + 16 < np)
-            __builtin_prefetch(&P->exps[F->orig[k + 16] * n]);
-        const int64_t *e = &P->exps[F->orig[k] * n];
+            __builtin_prefetch(&P->exps[F->orig[k + 16] * F->nfull]);
+        const int64_t *e = &P->exps[F->orig[k] * F->nfull];
         for (int j = 0; j < n; j++)
-            F->x[k * n + j] = (int32_t)(e[j] - lo[j]);
+            F->x[k * n + j] = (int32_t)(e[F->J[j]] - lo[j]);
     }
     /* Frame simplex {x_j >= -1, sum x_j <= n R + 1}, strictly around [0, R]^n. */
     F->small = n * R + n < ((int64_t)1 << 19);
@@ -1143,11 +1149,18 @@ static tp_status emit(fh *F, tp_hull *H, tp_error *err)
     size_t np = F->np, ns = F->ns;
     tp_status st = TP_OK;
     mpq_t w[NMAX];
-    mpz_t u[NMAX];
-    for (int j = 0; j < NMAX; j++) {
+    for (int j = 0; j < NMAX; j++)
         mpq_init(w[j]);
-        mpz_init(u[j]);
-    }
+    /* normals in the input's coordinates: zero off the kept ones (the hull reduces them
+     * modulo the lineality space afterwards) */
+    size_t nf = F->nfull;
+    mpq_t *wf = malloc(nf * sizeof *wf);
+    mpz_t *uf = malloc(nf * sizeof *uf);
+    if (wf && uf)
+        for (size_t j = 0; j < nf; j++) {
+            mpq_init(wf[j]);
+            mpz_init(uf[j]);
+        }
     /* the insertion scratch arrays (one entry per simplex slot) are reused here */
     int32_t *par = (int32_t *)F->mark;
     int32_t *cell = F->freel;
@@ -1166,7 +1179,7 @@ static tp_status emit(fh *F, tp_hull *H, tp_error *err)
     struct bface *bf = NULL;
     size_t nbf = 0, capbf = 0, ngroups = 0, ncell = 0;
     size_t *gstart = NULL;
-    if (!seen || !isvert || !firstcell) {
+    if (!seen || !isvert || !firstcell || !wf || !uf) {
         NOMEM();
         goto out;
     }
@@ -1430,7 +1443,9 @@ static tp_status emit(fh *F, tp_hull *H, tp_error *err)
             m += nx;
         }
         simplex_normal(F, corder[cstart[c]], w);
-        st = tp_hull_push_lower(H, buf, m, w, err);
+        for (int j = 0; j < n; j++)
+            mpq_swap(wf[F->J[j]], w[j]);
+        st = tp_hull_push_lower(H, buf, m, wf, err);
         if (st != TP_OK)
             goto out;
     }
@@ -1448,16 +1463,21 @@ static tp_status emit(fh *F, tp_hull *H, tp_error *err)
         for (size_t k = sstart[g]; k < sstart[g + 1]; k++)
             buf[m++] = (size_t)spts[k];
         for (int j = 0; j < n; j++)
-            mpz_set_si(u[j], (long)bf[gstart[g]].u[j]);
-        st = tp_hull_push_side(H, buf, m, u, err);
+            mpz_set_si(uf[F->J[j]], (long)bf[gstart[g]].u[j]);
+        st = tp_hull_push_side(H, buf, m, uf, err);
         if (st != TP_OK)
             goto out;
     }
 out:
-    for (int j = 0; j < NMAX; j++) {
+    for (int j = 0; j < NMAX; j++)
         mpq_clear(w[j]);
-        mpz_clear(u[j]);
-    }
+    if (wf && uf)
+        for (size_t j = 0; j < nf; j++) {
+            mpq_clear(wf[j]);
+            mpz_clear(uf[j]);
+        }
+    free(wf);
+    free(uf);
     free(buf);
     free(firstcell);
     free(seen);
@@ -1482,14 +1502,54 @@ out:
 
 /* ---- entry point ----------------------------------------------------------------- */
 
+/* The coordinates worked in: those that are no pivot of the lineality basis. Its rows
+ * are in reduced echelon form, so a direction v of the affine span (v orthogonal to
+ * every row) that vanishes on them vanishes on the pivots too: the projection is
+ * injective on the span and keeps every cell and side, and a normal w' in the kept
+ * coordinates, padded with zeros, satisfies <a, w> = <a', w'>. False if the span's
+ * dimension is out of range. */
+static bool kept_coordinates(const tp_hull *H, const tp_points *P, size_t *J)
+{
+    if (H->dim < 1 || H->dim > NMAX || H->nlin + (size_t)H->dim != P->n)
+        return false;
+    for (size_t j = 0, k = 0; j < P->n; j++) {
+        bool pivot = false;
+        for (size_t l = 0; l < H->nlin; l++)
+            pivot = pivot || H->lin_pivot[l] == j;
+        if (!pivot)
+            J[k++] = j;
+    }
+    return true;
+}
+
+bool tp_hull_fast_accepts(const tp_hull *H, const tp_points *P)
+{
+    size_t J[NMAX];
+    if (P->count > COUNT_MAX || !kept_coordinates(H, P, J))
+        return false;
+    for (int j = 0; j < H->dim; j++) {
+        int64_t lo = INT64_MAX, hi = INT64_MIN;
+        for (size_t i = 0; i < P->count; i++)
+            if (!P->dup[i]) {
+                int64_t a = P->exps[i * P->n + J[j]];
+                lo = a < lo ? a : lo;
+                hi = a > hi ? a : hi;
+            }
+        if ((uint64_t)hi - (uint64_t)lo > (uint64_t)RANGE_MAX)
+            return false;
+    }
+    return true;
+}
+
 tp_status tp_hull_lower_fast(tp_hull *H, const tp_points *P, bool *handled, tp_error *err)
 {
     *handled = false;
-    if (P->n < 1 || P->n > NMAX || H->dim != (int)P->n || P->count > COUNT_MAX)
-        return TP_OK;
     fh F;
     memset(&F, 0, sizeof F);
-    F.n = (int)P->n;
+    if (P->count > COUNT_MAX || !kept_coordinates(H, P, F.J))
+        return TP_OK;
+    F.n = H->dim;
+    F.nfull = P->n;
     F.D = F.n + 1;
     F.np = P->count;
     F.rng = 0x74726f7065u;

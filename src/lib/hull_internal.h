@@ -18,6 +18,11 @@ tp_status tp_hull_lower_cdd(tp_hull *H, const tp_points *P, tp_error *err);
  * cover this input (dimension, size, degenerate span); the caller then uses cddlib. */
 tp_status tp_hull_lower_fast(tp_hull *H, const tp_points *P, bool *handled, tp_error *err);
 
+/* Whether the fast engine takes P, given H's span (tp_hull_span done): a Newton
+ * polytope of dimension 1..3 (in any number of variables), exponent ranges below 2^28
+ * in the coordinates it works in, at most 2^26 points. */
+bool tp_hull_fast_accepts(const tp_hull *H, const tp_points *P);
+
 /* Sort facets and sides, reduce w and u modulo L, make u primitive. */
 tp_status tp_hull_finish(tp_hull *H, tp_error *err);
 

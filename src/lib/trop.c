@@ -1,5 +1,6 @@
 /* trop.c — the tropicalize pipeline: points -> hull -> subdivision -> complex. */
 #include "trope/trop.h"
+#include "hull_internal.h"
 
 #include <stdint.h>
 #include <stdio.h>
@@ -35,10 +36,10 @@ void tp_trop_clear(tp_trop *T)
     tp_complex_init(&T->complex);
 }
 
-/* Inputs that only cddlib can take (more than 3 variables, a Newton polytope that is
- * not full-dimensional, huge exponent ranges, or --engine cdd) cost it time roughly
- * quadratic in the number of points: about 5e-6 s * N^2 measured here for 4 variables.
- * Refuse large ones up front, with an estimate, rather than run for an hour. */
+/* Inputs that only cddlib can take (a Newton polytope of dimension above 3, huge
+ * exponent ranges, or --engine cdd) cost it time roughly quadratic in the number of
+ * points: about 5e-6 s * N^2 measured here for 4 variables. Refuse large ones up
+ * front, with an estimate, rather than run for an hour. */
 static tp_status check_cdd_work(const tp_points *P, const tp_trop_options *opt,
                                 tp_error *err)
 {
@@ -48,37 +49,25 @@ static tp_status check_cdd_work(const tp_points *P, const tp_trop_options *opt,
         m += !P->dup[i];
     if (m <= limit)
         return TP_OK;
-    bool cdd = opt->engine == TP_ENGINE_CDD || P->n > 3;
-    const char *why = opt->engine == TP_ENGINE_CDD ? "--engine cdd"
-                      : P->n > 3                  ? "more than 3 variables"
-                                                  : "";
+    bool cdd = opt->engine == TP_ENGINE_CDD;
+    const char *why = "--engine cdd";
     if (!cdd) {
-        /* the fast engine declines lower-dimensional Newton polytopes and exponent
-         * ranges of 2^28 or more */
-        for (size_t j = 0; j < P->n && !cdd; j++) {
-            int64_t lo = INT64_MAX, hi = INT64_MIN;
-            for (size_t i = 0; i < P->count; i++) {
-                int64_t a = P->exps[i * P->n + j];
-                lo = a < lo ? a : lo;
-                hi = a > hi ? a : hi;
-            }
-            if ((uint64_t)hi - (uint64_t)lo >= ((uint64_t)1 << 28)) {
-                cdd = true;
-                why = "an exponent range of 2^28 or more";
-            }
+        tp_hull H;
+        tp_hull_init(&H);
+        tp_status st = tp_hull_span(&H, P, err);
+#ifdef TP_HAVE_FAST_ENGINE
+        if (st == TP_OK && H.dim > 0 && !tp_hull_fast_accepts(&H, P)) {
+            cdd = true;
+            why = H.dim > 3 ? "a Newton polytope of dimension above 3"
+                            : "an exponent range of 2^28 or more";
         }
-        if (!cdd) {
-            tp_hull H;
-            tp_hull_init(&H);
-            tp_status st = tp_hull_span(&H, P, err);
-            if (st == TP_OK && H.dim < (int)P->n) {
-                cdd = true;
-                why = "a Newton polytope that is not full-dimensional";
-            }
-            tp_hull_clear(&H);
-            if (st != TP_OK)
-                return st;
-        }
+#else
+        cdd = st == TP_OK && H.dim > 0;
+        why = "no fast engine in this build";
+#endif
+        tp_hull_clear(&H);
+        if (st != TP_OK)
+            return st;
     }
     if (!cdd)
         return TP_OK;

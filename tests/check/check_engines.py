@@ -5,7 +5,8 @@ Usage: /usr/bin/python3 tests/check/check_engines.py PATH_TO_TROPE
 
 1. cddlib (Debian libcdd-dev, GMP-exact double description): `trope tropicalize
    --engine cdd` and `--engine fast` must write byte-identical JSON on random, fine,
-   flat, collinear, rational, huge-height and Laurent inputs in 1, 2 and 3 variables.
+   flat, collinear, rational, huge-height and Laurent inputs in 1, 2 and 3 variables,
+   and on Newton polytopes of lower dimension in 3-5 variables (homogeneous input).
 2. Qhull (Debian python3-scipy, scipy.spatial.ConvexHull, default options) at sizes
    cddlib does not reach: the lifted points plus an apex above the centroid; Qhull's
    triangles that avoid the apex and are not vertical are the lower triangles, and
@@ -17,6 +18,7 @@ Usage: /usr/bin/python3 tests/check/check_engines.py PATH_TO_TROPE
 
 Inputs are random with fixed seeds (our own data).
 """
+import itertools
 import json
 import os
 import random
@@ -117,6 +119,20 @@ def cdd_cases(tmp):
         n = 1 + it % 3
         compare_engines(tmp, f"laurent-n{n}-{it}",
                         random_rows(rng, n, rng.randint(n + 3, 20), 10**7, 10**5))
+    # Newton polytopes of lower dimension: homogeneous point sets (projective curves in
+    # 3 variables, surfaces in 4) and points on a line or plane in 3-5 variables
+    for it in range(16):
+        n = 3 + it % 3
+        d = rng.randint(2, 7 if n == 3 else 4)
+        if it % 2 == 0:    # homogeneous of degree d
+            mons = [a for a in itertools.product(range(d + 1), repeat=n - 1) if sum(a) <= d]
+            pts = [a + (d - sum(a),) for a in mons]
+        else:              # a0 + M b, b in a box, M integer n x 2
+            M = [[rng.randint(-2, 2) for _ in range(2)] for _ in range(n)]
+            pts = sorted({tuple(5 + M[i][0] * b0 + M[i][1] * b1 for i in range(n))
+                          for b0 in range(-3, 4) for b1 in range(-3, 4)})
+        rows = [a + (rng.choice([0, 1, 2, rng.randint(-40, 40)]),) for a in pts]
+        compare_engines(tmp, f"lowdim-n{n}-{it}", rows)
     # polynomials over a valued field, through the parser (p-adic, Laurent exponents)
     for it in range(8):
         terms = []

@@ -7,6 +7,10 @@
  * normal), the on_hull marks. The fast engine is called directly so that a silent
  * fallback to cddlib cannot make the test pass.
  *
+ * Inputs: random, lattice (fine, flat), piecewise-linear, huge heights, large
+ * exponents, and Newton polytopes of lower dimension in up to 5 variables (homogeneous
+ * ones among them), which the engine works in projected coordinates.
+ *
  * Independent facts checked as well (common practice, no source): for generic
  * heights on the lattice points of dΔ with strictly convex heights every lattice
  * point is used and the subdivision is a triangulation with d^2 triangles of
@@ -226,6 +230,49 @@ static void gen_simplex(pset *S, tp_rng *r, size_t n, long d, long noise, bool f
     ps_dups(S);
 }
 
+/* A Newton polytope of lower dimension: a = a0 + M b with an integer n x d matrix M
+ * (n = 2..5, d = 1..3; M may happen to have lower rank), b in a box, heights random
+ * (few values: ties) or convex in b (fine subdivisions). Homogeneous input is the case
+ * users meet most (M's columns summing to zero). */
+static void gen_lowdim(pset *S, tp_rng *r, size_t n, size_t d, size_t k, bool homogeneous)
+{
+    ps_init(S, n);
+    long M[5][3], a0[5];
+    for (size_t i = 0; i < n; i++) {
+        a0[i] = tp_rng_range(r, -5, 5);
+        for (size_t j = 0; j < d; j++)
+            M[i][j] = tp_rng_range(r, -3, 3);
+    }
+    if (homogeneous)
+        for (size_t j = 0; j < d; j++) {
+            long sum = 0;
+            for (size_t i = 0; i + 1 < n; i++)
+                sum += M[i][j];
+            M[n - 1][j] = -sum;
+        }
+    long hmode = tp_rng_range(r, 0, 2);
+    mpq_t h;
+    mpq_init(h);
+    for (size_t t = 0; t < k; t++) {
+        long b[3] = {0, 0, 0};
+        for (size_t j = 0; j < d; j++)
+            b[j] = tp_rng_range(r, -4, 4);
+        int64_t a[5];
+        for (size_t i = 0; i < n; i++) {
+            a[i] = a0[i];
+            for (size_t j = 0; j < d; j++)
+                a[i] += M[i][j] * b[j];
+        }
+        long v = hmode == 0 ? tp_rng_range(r, 0, 3)
+                 : hmode == 1 ? tp_rng_range(r, -50, 50)
+                              : b[0] * b[0] + b[1] * b[1] + b[2] * b[2] + tp_rng_range(r, 0, 1);
+        mpq_set_si(h, v, 1);
+        ps_add(S, a, h);
+    }
+    mpq_clear(h);
+    ps_dups(S);
+}
+
 /* Heights with ~100 bits: forces the GMP predicates. */
 static void gen_huge(pset *S, tp_rng *r, size_t n, size_t k)
 {
@@ -374,6 +421,17 @@ int main(void)
         compare(&S, false, "large exponents", it);
         ps_clear(&S);
     }
+    /* Lower-dimensional Newton polytopes (projected to d coordinates). */
+    long before = n_fast_handled;
+    for (long it = 0; it < 300 * mult; it++) {
+        size_t n = (size_t)tp_rng_range(&r, 2, 5);
+        size_t d = (size_t)tp_rng_range(&r, 1, n - 1 < 3 ? (long)n - 1 : 3);
+        gen_lowdim(&S, &r, n, d, (size_t)tp_rng_range(&r, 3, d == 3 ? 30 : 50), it % 2 == 0);
+        compare(&S, false, "lower dimensional", it);   /* declined: a single point */
+        ps_clear(&S);
+    }
+    tp_check(n_fast_handled - before > 280 * mult, "lower dimensional: only %ld handled",
+             n_fast_handled - before);
     printf("t-hullfast: %ld cases, fast engine handled %ld, declined %ld\n", n_cases,
            n_fast_handled, n_declined);
     tp_check(n_fast_handled > n_cases * 9 / 10, "fast engine handled too few cases");
