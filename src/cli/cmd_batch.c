@@ -56,6 +56,24 @@ typedef struct {
     pthread_cond_t ready; /* a job finished */
 } pool;
 
+/* Run job k (taken by the caller) and publish its result. */
+static void run_job(pool *P, size_t k)
+{
+    bjob *j = &P->jobs[k];
+    char *out = NULL;
+    size_t outlen = 0;
+    bool ok = false;
+    tp_status st = tp_batch_run_line(j->line, j->len, j->lineno, &P->opt, &out, &outlen, &ok);
+    pthread_mutex_lock(&P->lock);
+    j->out = out;
+    j->outlen = outlen;
+    j->ok = ok;
+    j->st = st;
+    j->done = true;
+    pthread_cond_broadcast(&P->ready);
+    pthread_mutex_unlock(&P->lock);
+}
+
 static void *worker(void *arg)
 {
     pool *P = arg;
@@ -65,20 +83,7 @@ static void *worker(void *arg)
         pthread_mutex_unlock(&P->lock);
         if (k >= P->njobs)
             return NULL;
-        bjob *j = &P->jobs[k];
-        char *out = NULL;
-        size_t outlen = 0;
-        bool ok = false;
-        tp_status st = tp_batch_run_line(j->line, j->len, j->lineno, &P->opt, &out, &outlen,
-                                         &ok);
-        pthread_mutex_lock(&P->lock);
-        j->out = out;
-        j->outlen = outlen;
-        j->ok = ok;
-        j->st = st;
-        j->done = true;
-        pthread_cond_broadcast(&P->ready);
-        pthread_mutex_unlock(&P->lock);
+        run_job(P, k);
     }
 }
 
@@ -214,16 +219,14 @@ int cmd_batch(int argc, char **argv)
     }
     if ((size_t)nthreads > njobs)
         nthreads = njobs ? (long)njobs : 1;
+    /* nthreads - 1 helper threads; this thread runs jobs too whenever the next result
+     * to write is not ready (with --jobs 1 it runs them all, without any handover) */
     pthread_t *th = calloc((size_t)nthreads, sizeof *th);
     long started = 0;
-    for (long t = 0; th && t < nthreads; t++) {
+    for (long t = 0; th && t + 1 < nthreads; t++) {
         if (pthread_create(&th[t], NULL, worker, &P) != 0)
             break;
         started++;
-    }
-    if (started == 0) {
-        /* no thread at all: run here */
-        worker(&P);
     }
 
     bool tty = isatty(fileno(stderr));
@@ -232,8 +235,16 @@ int cmd_batch(int argc, char **argv)
     tp_status fatal = TP_OK;
     for (size_t k = 0; k < njobs; k++) {
         pthread_mutex_lock(&P.lock);
-        while (!jobs[k].done)
-            pthread_cond_wait(&P.ready, &P.lock);
+        while (!jobs[k].done) {
+            if (P.next < P.njobs) {
+                size_t mine = P.next++;
+                pthread_mutex_unlock(&P.lock);
+                run_job(&P, mine);
+                pthread_mutex_lock(&P.lock);
+            } else {
+                pthread_cond_wait(&P.ready, &P.lock);
+            }
+        }
         pthread_mutex_unlock(&P.lock);
         if (jobs[k].st != TP_OK) {
             if (fatal == TP_OK)
