@@ -77,7 +77,9 @@ def families(quick):
 # ---- runners ---------------------------------------------------------------------------
 
 def run_trope(csv, out, engine, n, timeout=None):
-    """Returns (hull_s, total_wall_s, cpu_s, maxrss_kib, facets) or None on timeout.
+    """Returns (hull_s, total_wall_s, cpu_s, maxrss_kib, facets) or None on timeout
+    (cpu_s: the sum of the phases --timings reports: parse, hull, subdivision, complex,
+    write).
     Memory and CPU come from /usr/bin/time around trope alone (a forked Python child's
     ru_maxrss would include the Python image from before exec)."""
     tfile = out + ".time"
@@ -97,13 +99,19 @@ def run_trope(csv, out, engine, n, timeout=None):
         raise RuntimeError(f"trope failed on {csv}: {err.strip()}")
     m = re.search(r"hull ([0-9.]+) ms", err)
     hull = float(m.group(1)) / 1e3 if m else float("nan")
+    # the whole run's CPU time: the phases from --timings (microsecond resolution;
+    # /usr/bin/time only gives hundredths of a second)
+    phases = re.findall(r"(parse|hull|subdivision|complex|write) ([0-9.]+) ms", err)
+    cpu = sum(float(v) for _, v in phases) / 1e3 if phases else None
     with open(tfile) as f:
         rss, wall, user, sys_ = f.read().split()[-4:]
     os.remove(tfile)
     with open(out, "rb") as f:
         facets = f.read().count(b'"dim": %d, "normal": [' % n)   # top cells
     os.remove(out)
-    return hull, float(wall), float(user) + float(sys_), int(rss), facets
+    if cpu is None:
+        cpu = float(user) + float(sys_)
+    return hull, float(wall), cpu, int(rss), facets
 
 
 def det3(M):
@@ -173,7 +181,8 @@ def main():
     print(f"trope: {TROPE}; load average {os.getloadavg()[0]:.1f} on {os.cpu_count()} cores; "
           f"best of {REPEAT}")
     hdr = (f"{'family':<14}{'size':>7}{'points':>9} | {'hull':>8}{'run':>8}{'cpu':>8}"
-           f"{'KiB/pt':>8} | {'cddlib':>8} | {'Qhull':>8}{'ratio':>7} | facets trope/cdd/Qhull")
+           f"{'KiB/pt':>8} | {'cddlib':>8} | {'Qhull':>8}{'ratio':>7}{'run/Q':>7} | "
+           f"facets trope/cdd/Qhull")
     print(hdr)
     print("-" * len(hdr))
     growth = {}
@@ -199,8 +208,9 @@ def main():
             qt1, qf = run_qhull(A, h)
             qt = qt1 if qt is None else min(qt, qt1)
             ratio = hull / qt if qt > 0 else float("nan")
+            runq = cpu / qt if qt > 0 else float("nan")
             print(f"{name:<14}{d:>7}{len(A):>9} | {hull:8.3f}{wall:8.3f}{cpu:8.3f}"
-                  f"{rss / len(A):8.2f} | {cdd_t:>8} | {qt:8.3f}{ratio:7.2f} | "
+                  f"{rss / len(A):8.2f} | {cdd_t:>8} | {qt:8.3f}{ratio:7.2f}{runq:7.2f} | "
                   f"{facets}/{cdd_f}/{qf}", flush=True)
             growth.setdefault(name, []).append((len(A), hull, wall, qt))
     print()
@@ -212,9 +222,10 @@ def main():
         print(f"  {name:<14} trope hull {slope(xs, [x[1] for x in g]):5.2f}   whole run "
               f"{slope(xs, [x[2] for x in g]):5.2f}   Qhull {slope(xs, [x[3] for x in g]):5.2f}")
     print()
-    print("hull: CPU time of the hull phase (--timings); run: wall time of the whole command, "
-          "JSON written; cpu: its user+system time; KiB/pt: its peak resident memory per "
-          "input point; Qhull: CPU time of ConvexHull; ratio: hull / Qhull.")
+    print("hull: CPU time of the hull phase (--timings); run: wall time of the whole command,\n"
+          "JSON written; cpu: the CPU time of its phases, reading the CSV to writing every\n"
+          "term, cell and ray (--timings); KiB/pt: its peak resident memory per input point;\n"
+          "Qhull: CPU time of ConvexHull; ratio: hull / Qhull; run/Q: cpu / Qhull.")
     return 0
 
 
