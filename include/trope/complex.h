@@ -17,22 +17,28 @@
 #define TROPE_COMPLEX_H
 
 #include <stdbool.h>
+#include <stdint.h>
 #include "trope/subdiv.h"
 
 typedef struct {
     int dim;
-    size_t nverts;
-    size_t *verts;       /* indices into vertices, ascending (in C->idx_pool) */
-    size_t nrays;
-    size_t *rays;        /* indices into rays, ascending (in C->idx_pool) */
-    size_t dual;         /* index into the subdivision's cells */
-    mpz_t weight;        /* top cells: lattice length of the dual edge; else 0 */
-    mpz_t mult;          /* dim-0 cells of plane curves (n - nlin == 2) and n == 1:
-                            multiplicity (normalized area of the dual polygon, or the
-                            weight for n == 1); else 0 */
+    uint32_t nverts;     /* counts and dual are 32-bit (the subdivision refuses more
+                            than 2^32 - 1 faces or facets): a cell takes 72 bytes */
+    uint32_t nrays;
+    uint32_t dual;       /* index into the subdivision's cells */
+    size_t *verts;       /* indices into vertices, ascending (in C->idx_pool), then
+                            nrays indices into rays, ascending: tp_complex_cell_rays */
+    mpz_t weight;        /* top cells: lattice length of the dual edge; else 0 (the
+                            multiplicity of a vertex cell: tp_complex_mult) */
     char *initial_form;  /* sum over dual points of residue * monomial; NULL if the
                             points carry no residues */
 } tp_complex_cell;
+
+/* The rays of cell c: nrays indices into the complex's rays, ascending. */
+static inline size_t *tp_complex_cell_rays(const tp_complex_cell *c)
+{
+    return c->verts + c->nverts;
+}
 
 typedef struct {
     mpz_t *dir;          /* n coordinates, primitive */
@@ -46,7 +52,9 @@ typedef struct {
     size_t nlin;
     mpz_t *lin;          /* copy of the lineality basis, nlin * n (negation-invariant) */
     size_t nverts;
-    mpq_t *verts;        /* nverts * n */
+    mpq_t *verts;        /* nverts * n, read-only values (limbs in `limbs`) */
+    mpz_t *vmult;        /* nverts multiplicities (read-only values) for plane curves
+                            (n - nlin == 2) and n == 1, else NULL: see tp_complex_mult */
     size_t nrays;
     mpz_t *rays;         /* nrays * n */
     size_t ncells;
@@ -66,6 +74,7 @@ typedef struct {
     size_t nunbounded;   /* curves: unbounded 1-cells */
     size_t nraydeg;
     tp_complex_raydeg *raydeg;  /* curves: rays by direction with total weight */
+    tp_arena limbs;      /* the limbs behind verts (read-only values, see arena.h) */
 } tp_complex;
 
 void tp_complex_init(tp_complex *C);
@@ -78,10 +87,27 @@ TP_MUST_CHECK tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S,
                                          const tp_points *P, char *const *vars,
                                          bool max, tp_error *err);
 
+/* tp_complex_build_move: the same, but the vertex coordinates are moved out of S's
+ *   lower facet normals instead of copied (the pipeline's way: it saves a copy of
+ *   every normal). Afterwards every S->hull.lower[i].w is NULL: the normal of lower
+ *   facet i is the only vertex of the complex cell dual to the maximal subdivision
+ *   cell on that facet (negated under max). S is otherwise unchanged. A Newton
+ *   polytope of dimension 0 (a monomial, no vertices) leaves S untouched. */
+TP_MUST_CHECK tp_status tp_complex_build_move(tp_complex *C, tp_subdiv *S,
+                                              const tp_points *P, char *const *vars,
+                                              bool max, tp_error *err);
+
 /* tp_complex_interior: a relative interior point of cell i (the centroid of its
  * vertices plus the sum of its rays), exact, into out[0..n-1] (initialised mpq_t).
  * Computed on demand: the complex stores no interior points. */
 void tp_complex_interior(const tp_complex *C, size_t i, mpq_t *out);
+
+/* tp_complex_mult: the multiplicity of cell i. For plane curves (n - nlin == 2) and
+ * n == 1, a cell of dimension nlin (dual to a maximal subdivision cell, one vertex, no
+ * rays) has the normalized area of its dual polygon (the weight of its dual edge for
+ * n == 1); every other cell, and every cell of other complexes, 0. The value is
+ * read-only and lives as long as C. */
+mpz_srcptr tp_complex_mult(const tp_complex *C, size_t i);
 
 /* tp_complex_check: dimensions, sortedness, primitive rays, weights > 0 on top cells,
  * and the balancing of every codimension-2 cell. returns TP_OK or TP_EINTERNAL. */

@@ -12,12 +12,17 @@
  *
  * Invariants: point lists are ascending and exclude dup points; lower facets sorted by
  * point list; sides sorted by point list; lineality vectors primitive integer.
+ *
+ * Storage: lower facets' point lists and normals live in arenas (trope/arena.h), not in
+ * one allocation each; the normals w are read-only GMP values (see tp_arena_qview).
+ * tp_complex_build_move takes the normals over: afterwards every w is NULL.
  */
 #ifndef TROPE_HULL_H
 #define TROPE_HULL_H
 
 #include <stdbool.h>
 #include <gmp.h>
+#include "trope/arena.h"
 #include "trope/error.h"
 #include "trope/points.h"
 
@@ -25,7 +30,8 @@ typedef struct {
     size_t npts;
     size_t *pts;   /* points on the facet, ascending */
     mpq_t *w;      /* n coordinates: h_i + <a_i, w> = c on pts, > c at every other point;
-                      reduced modulo L */
+                      reduced modulo L. Read-only values in w_limbs; NULL once the
+                      complex has taken them (tp_complex_build_move) */
 } tp_hull_facet;
 
 typedef struct {
@@ -49,6 +55,9 @@ typedef struct {
     size_t nsides;
     tp_hull_side *sides;
     bool *on_hull;       /* npoints: lies on some lower facet */
+    tp_arena pts_mem;    /* lower facets' pts */
+    tp_arena w_mem;      /* lower facets' w (the mpq_t structs) */
+    tp_arena w_limbs;    /* the limbs behind every w */
 } tp_hull;
 
 void tp_hull_init(tp_hull *H);

@@ -8,23 +8,34 @@
 #ifndef TROPE_SUBDIV_H
 #define TROPE_SUBDIV_H
 
+#include <stdint.h>
 #include "trope/hull.h"
 
 typedef struct {
     int dim;             /* affine dimension of the cell's points */
-    size_t npts;
+    uint32_t npts;       /* counts are 32-bit: tp_subdiv_build refuses point sets and */
+    uint32_t nlower;     /* hulls of 2^32 or more points or facets (TP_ELIMIT) */
+    uint32_t nsides;
     size_t *pts;         /* points lying on the face, ascending */
-    size_t nlower;
-    size_t *lower;       /* indices into hull.lower of facets containing the face */
-    size_t nsides;
-    size_t *sides;       /* indices into hull.sides of Newton facets containing it */
+    size_t *lower;       /* indices into hull.lower of facets containing the face, then
+                            (nsides more) indices into hull.sides of the Newton facets
+                            containing it: see tp_subdiv_sides */
 } tp_subdiv_cell;
+
+/* The Newton polytope facets containing c: nsides indices into hull.sides, ascending. */
+static inline size_t *tp_subdiv_sides(const tp_subdiv_cell *c)
+{
+    return c->lower + c->nlower;
+}
 
 typedef struct {
     tp_hull hull;        /* owned */
     size_t ncells;
     tp_subdiv_cell *cells;
-    size_t *pool;        /* storage behind every cell's pts, lower and sides lists */
+    tp_arena pool;       /* storage behind the cells' pts, lower and sides lists; lists
+                            are shared where they can be (a maximal cell's pts is its
+                            lower facet's, in the hull; a face whose points are a run
+                            of its parent's list points into it): read-only */
     size_t nunused;
     size_t *unused;      /* points on no lower face (above the hull, or dup), ascending */
     double hull_ms;      /* CPU time of tp_hull_lower in the last build (--timings) */
@@ -34,7 +45,8 @@ void tp_subdiv_init(tp_subdiv *S);
 void tp_subdiv_clear(tp_subdiv *S);
 
 /* tp_subdiv_build: run the hull engine on P and enumerate all lower faces.
- *   returns TP_OK, or the hull's error; TP_ENOMEM. Cost: output-sensitive, each face is
+ *   returns TP_OK, or the hull's error; TP_ENOMEM; TP_ELIMIT for 2^32 or more points,
+ *   facets or faces. Cost: output-sensitive, each face is
  *   found from its parent faces through a point -> facet index. */
 TP_MUST_CHECK tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P,
                                         tp_engine engine, tp_error *err);

@@ -148,7 +148,7 @@ static tp_status put_curve_decimal(FILE *f, const tp_trop *T, tp_error *err)
         for (size_t t = 0; t < c->nverts && len < 100; t++)
             len += snprintf(b + len, sizeof b - (size_t)len, "%sv%zu", t ? " - " : "", c->verts[t]);
         for (size_t t = 0; t < c->nrays && len < 100; t++) {
-            const mpz_t *r = (const mpz_t *)&C->rays[c->rays[t] * n];
+            const mpz_t *r = (const mpz_t *)&C->rays[tp_complex_cell_rays(c)[t] * n];
             len += snprintf(b + len, sizeof b - (size_t)len, " + ray (%ld, %ld)",
                             mpz_get_si(r[0]), n > 1 ? mpz_get_si(r[1]) : 0L);
         }

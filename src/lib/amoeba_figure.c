@@ -70,7 +70,7 @@ static tp_status add_archimedean(tp_figure *F, const tp_trop *A, tp_error *err)
             dir[1] = mpq_get_d(C->verts[2 * b + 1]) - p[1];
             t1 = 1;
         } else if (cell->nverts == 1 && cell->nrays == 1) {
-            size_t a = cell->verts[0], r = cell->rays[0];
+            size_t a = cell->verts[0], r = tp_complex_cell_rays(cell)[0];
             p[0] = mpq_get_d(C->verts[2 * a]);
             p[1] = mpq_get_d(C->verts[2 * a + 1]);
             dir[0] = mpz_get_d(C->rays[2 * r]);

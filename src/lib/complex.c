@@ -14,6 +14,7 @@
  * the primitive integer vector along Phi(q_e - p), q_e and p relative interior
  * points of C_e and C. The cell is balanced when sum_e weight_e * u_e = 0.
  */
+#define _GNU_SOURCE /* qsort_r */
 #include "trope/complex.h"
 
 #include <stdarg.h>
@@ -30,6 +31,7 @@ void tp_complex_init(tp_complex *C)
     C->dim = -1;
     C->genus = -1;
     C->smooth = -1;
+    tp_arena_init(&C->limbs);
 }
 
 static void zvec_free(mpz_t *v, size_t len)
@@ -72,14 +74,15 @@ void tp_complex_clear(tp_complex *C)
 {
     for (size_t i = 0; i < C->ncells; i++) {
         tp_complex_cell *c = &C->cells[i];
-        mpz_clear(c->weight);
-        mpz_clear(c->mult);
+        /* weight is a read-only value in C->limbs */
         free(c->initial_form);
     }
-    free(C->cells);
-    free(C->idx_pool);
+    tp_big_free(C->cells);
+    tp_big_free(C->idx_pool);
     zvec_free(C->lin, C->nlin * C->n);
-    qvec_free(C->verts, C->nverts * C->n);
+    tp_big_free(C->verts); /* read-only values: their limbs go with the arena */
+    tp_big_free(C->vmult);
+    tp_arena_free(&C->limbs);
     zvec_free(C->rays, C->nrays * C->n);
     free(C->f_vector);
     for (size_t i = 0; i < C->nraydeg; i++) {
@@ -458,18 +461,21 @@ static char *initial_form(const tp_points *P, const size_t *pts, size_t npts,
 
 /* ---- sorting with permutations ------------------------------------------------ */
 
+/* Sorting sorts 32-bit indices (qsort_r: glibc's merge sort takes a scratch copy of
+ * the array, so small elements keep that small), then moves the rows in place. */
 typedef struct {
-    mpq_t *q;        /* row of rationals, or NULL */
-    mpz_t *z;        /* row of integers, or NULL */
+    const mpq_t *q;  /* rows of rationals, or NULL */
+    const mpz_t *z;  /* rows of integers, or NULL */
     size_t n;
-    size_t idx;
-} rowref;
+} rowctx;
 
-static int cmp_rowref(const void *x, const void *y)
+static int cmp_row_r(const void *x, const void *y, void *ctx)
 {
-    const rowref *a = x, *b = y;
-    for (size_t j = 0; j < a->n; j++) {
-        int c = a->q ? mpq_cmp(a->q[j], b->q[j]) : mpz_cmp(a->z[j], b->z[j]);
+    const rowctx *r = ctx;
+    size_t a = *(const uint32_t *)x * r->n, b = *(const uint32_t *)y * r->n;
+    for (size_t j = 0; j < r->n; j++) {
+        int c = r->q ? mpq_cmp(r->q[a + j], r->q[b + j])
+                     : mpz_cmp(r->z[a + j], r->z[b + j]);
         if (c)
             return c < 0 ? -1 : 1;
     }
@@ -506,6 +512,14 @@ static int cmp_list(const size_t *a, size_t na, const size_t *b, size_t nb)
     return (na > nb) - (na < nb);
 }
 
+static int cmp_cell(const void *x, const void *y);
+
+static int cmp_cell_r(const void *x, const void *y, void *ctx)
+{
+    const tp_complex_cell *cells = ctx;
+    return cmp_cell(&cells[*(const uint32_t *)x], &cells[*(const uint32_t *)y]);
+}
+
 static int cmp_cell(const void *x, const void *y)
 {
     const tp_complex_cell *a = x, *b = y;
@@ -514,10 +528,26 @@ static int cmp_cell(const void *x, const void *y)
     int c = cmp_list(a->verts, a->nverts, b->verts, b->nverts);
     if (c)
         return c;
-    return cmp_list(a->rays, a->nrays, b->rays, b->nrays);
+    return cmp_list(tp_complex_cell_rays(a), a->nrays, tp_complex_cell_rays(b), b->nrays);
 }
 
 /* ---- build ------------------------------------------------------------------------ */
+
+/* Move row i of the m rows at base (rowbytes each) to row to[i], in place; `to` is
+ * destroyed (left the identity). tmp holds one row. */
+static void permute_rows(void *base, size_t rowbytes, size_t *to, size_t m, void *tmp)
+{
+    unsigned char *b = base;
+    for (size_t i = 0; i < m; i++)
+        while (to[i] != i) {
+            size_t j = to[i];
+            memcpy(tmp, b + j * rowbytes, rowbytes);
+            memcpy(b + j * rowbytes, b + i * rowbytes, rowbytes);
+            memcpy(b + i * rowbytes, tmp, rowbytes);
+            to[i] = to[j];
+            to[j] = j;
+        }
+}
 
 static tp_status nomem(tp_error *err)
 {
@@ -527,6 +557,8 @@ static tp_status nomem(tp_error *err)
 /* num/den (den > 0) reduced; false unless both fit in int64 (|x| <= INT64_MAX). */
 static bool q_reduce(i128 *num, i128 *den)
 {
+    if (*den == 1)
+        return fits64(*num);
     if (fits64(*num) && fits64(*den)) {
         /* 64-bit arithmetic: the common case, and much cheaper than 128-bit division */
         int64_t a = (int64_t)*num, b = (int64_t)*den;
@@ -557,11 +589,21 @@ static bool interior_coord64(const tp_complex *C, const tp_complex_cell *c, size
     i128 a = 0, b = 1;
     for (size_t v = 0; v < c->nverts; v++) {
         mpq_srcptr w = C->verts[c->verts[v] * n + j];
-        if (!mpz_fits_slong_p(mpq_numref(w)) || !mpz_fits_slong_p(mpq_denref(w)))
+        int64_t x64, y64;
+        if (!tp_z_get64(mpq_numref(w), &x64) || !tp_z_get64(mpq_denref(w), &y64))
             return false;
-        i128 x = mpz_get_si(mpq_numref(w)), y = mpz_get_si(mpq_denref(w));
-        a = a * y + x * b;
-        b = b * y;
+        i128 x = x64, y = y64;
+        if (v == 0) {
+            a = x; /* already reduced */
+            b = y;
+            continue;
+        }
+        if (y == b) {
+            a += x; /* same denominator (often 1) */
+        } else {
+            a = a * y + x * b;
+            b = b * y;
+        }
         if (!q_reduce(&a, &b))
             return false;
     }
@@ -571,10 +613,11 @@ static bool interior_coord64(const tp_complex *C, const tp_complex_cell *c, size
             return false;
     }
     for (size_t r = 0; r < c->nrays; r++) {
-        mpz_srcptr u = C->rays[c->rays[r] * n + j];
-        if (!mpz_fits_slong_p(u))
+        mpz_srcptr u = C->rays[tp_complex_cell_rays(c)[r] * n + j];
+        int64_t u64;
+        if (!tp_z_get64(u, &u64))
             return false;
-        a += (i128)mpz_get_si(u) * b;
+        a += (i128)u64 * b;
         if (!fits64(a))
             return false;
     }
@@ -633,10 +676,20 @@ static void cell_interior(const tp_complex *C, const tp_complex_cell *c, mpq_t *
     }
     for (size_t r = 0; r < c->nrays; r++)
         for (size_t j = 0; j < n; j++) {
-            mpq_set_z(t, C->rays[c->rays[r] * n + j]);
+            mpq_set_z(t, C->rays[tp_complex_cell_rays(c)[r] * n + j]);
             mpq_add(out[j], out[j], t);
         }
     mpq_clear(t);
+}
+
+mpz_srcptr tp_complex_mult(const tp_complex *C, size_t i)
+{
+    static const mp_limb_t zero_limb = 0;
+    static const mpz_t zero = MPZ_ROINIT_N((mp_limb_t *)&zero_limb, 0);
+    const tp_complex_cell *c = &C->cells[i];
+    if (C->vmult && c->dim == (int)C->nlin && c->nverts == 1 && c->nrays == 0)
+        return C->vmult[c->verts[0]];
+    return zero;
 }
 
 void tp_complex_interior(const tp_complex *C, size_t i, mpq_t *out)
@@ -648,11 +701,11 @@ void tp_complex_interior(const tp_complex *C, size_t i, mpq_t *out)
  * -1 when some value overflows (the caller then uses GMP). Same arithmetic as the
  * GMP path: u_e is the primitive integer vector along q_e - p. */
 static int balance2_fast(const tp_subdiv *S, const tp_subdiv_cell *sig, const size_t *eoff,
-                         const size_t *eids, const bool *mark, const size_t *cell_of_sub,
+                         const uint32_t *eids, const bool *mark,
                          const tp_complex *C, size_t sc)
 {
     int64_t pn[2], pd[2], qn[2], qd[2];
-    if (!interior_frac64(C, &C->cells[cell_of_sub[sc]], pn, pd))
+    if (!interior_frac64(C, &C->cells[sc], pn, pd))
         return -1;
     i128 sum[2] = {0, 0};
     size_t f = sig->lower[0], nadj = 0;
@@ -664,7 +717,7 @@ static int balance2_fast(const tp_subdiv *S, const tp_subdiv_cell *sig, const si
         if (!inside)
             continue;
         nadj++;
-        const tp_complex_cell *ce = &C->cells[cell_of_sub[eids[q]]];
+        const tp_complex_cell *ce = &C->cells[eids[q]];
         if (!mpz_fits_slong_p(ce->weight) || !interior_frac64(C, ce, qn, qd))
             return -1;
         /* d_j = qn/qd - pn/pd = x_j / y_j, y_j > 0 */
@@ -742,8 +795,8 @@ static bool bal_ws_init(bal_ws *w, size_t n)
 /* Balancing at the codimension-2 cell dual to the 2-cell `sc`. `edges_of_facet`
  * (CSR over lower facets) lists the subdivision edges in each lower facet. */
 static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc,
-                               const size_t *eoff, const size_t *eids, bool *mark,
-                               const size_t *cell_of_sub, const tp_complex *C,
+                               const size_t *eoff, const uint32_t *eids, bool *mark,
+                               const tp_complex *C,
                                bal_ws *w, bool *balanced)
 {
     const tp_subdiv_cell *sig = &S->cells[sc];
@@ -789,7 +842,7 @@ static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc
     for (size_t t = 0; t < sig->npts; t++)
         mark[sig->pts[t]] = true;
     if (n == 2) {
-        int fast = balance2_fast(S, sig, eoff, eids, mark, cell_of_sub, C, sc);
+        int fast = balance2_fast(S, sig, eoff, eids, mark, C, sc);
         if (fast >= 0) {
             for (size_t t = 0; t < sig->npts; t++)
                 mark[sig->pts[t]] = false;
@@ -798,7 +851,7 @@ static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc
         }
     }
     mpq_t *p = w->pin;
-    cell_interior(C, &C->cells[cell_of_sub[sc]], p);
+    cell_interior(C, &C->cells[sc], p);
     /* Edges of sigma: subdivision edges inside one lower facet containing sigma whose
      * points all lie in sigma. */
     size_t f = sig->lower[0];
@@ -811,7 +864,7 @@ static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc
         if (!inside)
             continue;
         nadj++;
-        tp_complex_cell *ce = &C->cells[cell_of_sub[eids[q]]];
+        tp_complex_cell *ce = &C->cells[eids[q]];
         mpq_t *qi = w->qin;
         cell_interior(C, ce, qi);
         /* im = Phi(dq), made a primitive integer vector in Z^2 */
@@ -841,8 +894,24 @@ static tp_status check_balance(const tp_subdiv *S, const tp_points *P, size_t sc
     return st;
 }
 
+static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
+                       const tp_points *P, char *const *vars, bool max, tp_error *err);
+
 tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P,
                            char *const *vars, bool max, tp_error *err)
+{
+    return build(C, S, NULL, P, vars, max, err);
+}
+
+tp_status tp_complex_build_move(tp_complex *C, tp_subdiv *S, const tp_points *P,
+                                char *const *vars, bool max, tp_error *err)
+{
+    return build(C, S, S, P, vars, max, err);
+}
+
+/* take: S itself when its normals are to be moved, else NULL. */
+static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
+                       const tp_points *P, char *const *vars, bool max, tp_error *err)
 {
     tp_complex_clear(C);
     const tp_hull *H = &S->hull;
@@ -866,71 +935,112 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
     C->dim = (int)n - 1;
     tp_status st = TP_OK;
 
-    size_t *vmap = NULL, *rmap = NULL, *cell_of_sub = NULL, *eoff = NULL, *eids = NULL;
+    size_t *vmap = NULL, *rmap = NULL, *eoff = NULL;
+    uint32_t *eids = NULL; /* subdivision cell indices: fewer than 2^32 */
     bool *ray_used = NULL, *mark = NULL;
-    rowref *refs = NULL;
+    uint32_t *ord = NULL;
 
-    /* Cells, one per subdivision cell of dimension >= 1. */
+    /* Vertices: every lower facet normal (read-only values: moved with their limbs
+     * from the hull, or copied into this complex's arena). */
+    C->nverts = H->nlower;
+    for (size_t v = 0; v < H->nlower; v++)
+        if (!H->lower[v].w) {
+            st = tp_error_set(err, TP_EINTERNAL, 0, 0,
+                              "the subdivision's normals were already taken");
+            goto done;
+        }
+    C->verts = tp_big_alloc((C->nverts * n + 1) * sizeof *C->verts);
+    if (!C->verts) {
+        st = nomem(err);
+        goto done;
+    }
+    if (take) {
+        tp_hull *Hm = &take->hull;
+        for (size_t v = 0; v < Hm->nlower; v++) {
+            memcpy(&C->verts[v * n], Hm->lower[v].w, n * sizeof *C->verts);
+            Hm->lower[v].w = NULL;
+        }
+        tp_arena_take(&C->limbs, &Hm->w_limbs);
+        tp_arena_free(&Hm->w_mem);
+    } else {
+        for (size_t v = 0; v < H->nlower; v++)
+            if (!tp_arena_qview(&C->limbs, &C->verts[v * n],
+                                (const mpq_t *)H->lower[v].w, n)) {
+                st = nomem(err);
+                goto done;
+            }
+    }
+    if (S->ncells >= UINT32_MAX) {
+        st = tp_error_set(err, TP_ELIMIT, 0, 0,
+                          "%zu subdivision faces: the complex takes fewer than 2^32",
+                          S->ncells);
+        goto done;
+    }
+    /* Cells, one per subdivision cell of dimension >= 1. Weights and multiplicities
+     * are read-only values in C->limbs (zero until set). */
+    static const mp_limb_t zero_limb = 0;
+    mpz_t tw;
     size_t nc = 0, nidx = 0;
     for (size_t s = 0; s < S->ncells; s++)
         if (S->cells[s].dim >= 1) {
             nc++;
             nidx += S->cells[s].nlower + S->cells[s].nsides;
         }
-    C->cells = calloc(nc ? nc : 1, sizeof *C->cells);
-    C->idx_pool = malloc((nidx ? nidx : 1) * sizeof *C->idx_pool);
-    cell_of_sub = malloc((S->ncells ? S->ncells : 1) * sizeof *cell_of_sub);
+    C->cells = tp_big_alloc((nc ? nc : 1) * sizeof *C->cells);
+    C->idx_pool = tp_big_alloc((nidx ? nidx : 1) * sizeof *C->idx_pool);
     ray_used = calloc(H->nsides + 1, sizeof *ray_used);
-    if (!C->cells || !C->idx_pool || !cell_of_sub || !ray_used) {
+    if (!C->cells || !C->idx_pool || !ray_used) {
         st = nomem(err);
         goto done;
     }
     size_t *ip = C->idx_pool;
+    mpz_init(tw);
     for (size_t s = 0; s < S->ncells; s++) {
         const tp_subdiv_cell *sig = &S->cells[s];
-        cell_of_sub[s] = SIZE_MAX;
         if (sig->dim < 1)
             continue;
+        if (C->ncells != s) {
+            /* cells come sorted by dimension, descending (subdiv.h): complex cell i is
+             * dual to subdivision cell i, which the code below relies on */
+            st = tp_error_set(err, TP_EINTERNAL, 0, 0, "subdivision cells out of order");
+            mpz_clear(tw);
+            goto done;
+        }
         tp_complex_cell *c = &C->cells[C->ncells];
-        mpz_init(c->weight);
-        mpz_init(c->mult);
-        cell_of_sub[s] = C->ncells++;
+        mpz_roinit_n(c->weight, &zero_limb, 0);
+        C->ncells++;
         c->dim = (int)n - sig->dim;
-        c->dual = s;
+        c->dual = (uint32_t)s;
         c->nverts = sig->nlower;
         c->verts = ip;
         ip += c->nverts;
         c->nrays = sig->nsides;
-        c->rays = ip;
         ip += c->nrays;
         memcpy(c->verts, sig->lower, c->nverts * sizeof *c->verts);
-        memcpy(c->rays, sig->sides, c->nrays * sizeof *c->rays);
+        memcpy(ip - c->nrays, tp_subdiv_sides(sig), c->nrays * sizeof *ip);
         for (size_t r = 0; r < c->nrays; r++)
-            ray_used[c->rays[r]] = true;
+            ray_used[tp_complex_cell_rays(c)[r]] = true;
         if (sig->dim == 1) {
             size_t lo, hi;
-            edge_extremes(P, sig->pts, sig->npts, &lo, &hi, c->weight);
+            edge_extremes(P, sig->pts, sig->npts, &lo, &hi, tw);
+            if (!tp_arena_zview(&C->limbs, &c->weight, (const mpz_t *)&tw, 1)) {
+                mpz_clear(tw);
+                st = nomem(err);
+                goto done;
+            }
         }
         if (P->residue) {
             c->initial_form = initial_form(P, sig->pts, sig->npts, vars);
             if (!c->initial_form) {
+                mpz_clear(tw);
                 st = nomem(err);
                 goto done;
             }
         }
         C->f_vector[c->dim]++;
     }
+    mpz_clear(tw);
 
-    /* Vertices: every lower facet normal. */
-    C->nverts = H->nlower;
-    C->verts = qvec_new(C->nverts * n);
-    if (!C->verts) {
-        st = nomem(err);
-        goto done;
-    }
-    for (size_t v = 0; v < H->nlower; v++)
-        for (size_t j = 0; j < n; j++)
-            mpq_set(C->verts[v * n + j], H->lower[v].w[j]);
     /* Rays: the used Newton facet normals. */
     rmap = malloc((H->nsides + 1) * sizeof *rmap);
     if (!rmap) {
@@ -950,19 +1060,32 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
         if (rmap[r] != SIZE_MAX)
             for (size_t j = 0; j < n; j++)
                 mpz_set(C->rays[rmap[r] * n + j], H->sides[r].u[j]);
-    for (size_t i = 0; i < C->ncells; i++)
+    for (size_t i = 0; i < C->ncells; i++) {
+        size_t *cr = tp_complex_cell_rays(&C->cells[i]);
         for (size_t r = 0; r < C->cells[i].nrays; r++)
-            C->cells[i].rays[r] = rmap[C->cells[i].rays[r]];
+            cr[r] = rmap[cr[r]];
+    }
 
     /* Vertex multiplicities of curves and of n = 1 (before negation; they are
      * invariant). */
     int d = H->dim;
+    if (d == 2 || (d == 1 && n == 1)) {
+        C->vmult = tp_big_alloc((C->nverts + 1) * sizeof *C->vmult);
+        if (!C->vmult) {
+            st = nomem(err);
+            goto done;
+        }
+        for (size_t v = 0; v < C->nverts; v++)
+            mpz_roinit_n(C->vmult[v], &zero_limb, 0);
+    }
     if (d == 1 && n == 1) {
+        /* every cell is a vertex dual to an edge; shares the weight's read-only limbs */
         for (size_t i = 0; i < C->ncells; i++)
-            mpz_set(C->cells[i].mult, C->cells[i].weight);
+            C->vmult[C->cells[i].verts[0]][0] = C->cells[i].weight[0];
     }
     /* Edges by lower facet (CSR), for balancing and for polygon areas. */
-    eoff = calloc(H->nlower + 1, sizeof *eoff);
+    eoff = tp_big_alloc((H->nlower + 1) * sizeof *eoff); /* scratch: big_alloc gives */
+    /* the pages back to the system when freed, unlike a hole in malloc's heap */
     if (!eoff) {
         st = nomem(err);
         goto done;
@@ -976,35 +1099,37 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
         }
     for (size_t f = 0; f < H->nlower; f++)
         eoff[f + 1] += eoff[f];
-    eids = malloc((tot ? tot : 1) * sizeof *eids);
-    size_t *fill = malloc((H->nlower + 1) * sizeof *fill);
+    eids = tp_big_alloc((tot ? tot : 1) * sizeof *eids);
     mark = calloc(P->count + 1, sizeof *mark);
-    if (!eids || !fill || !mark) {
-        free(fill);
+    if (!eids || !mark) {
         st = nomem(err);
         goto done;
     }
-    memcpy(fill, eoff, (H->nlower + 1) * sizeof *fill);
+    /* fill with eoff[f] as the cursor of facet f, then shift the offsets back */
     for (size_t s = 0; s < S->ncells; s++)
         if (S->cells[s].dim == 1)
             for (size_t l = 0; l < S->cells[s].nlower; l++)
-                eids[fill[S->cells[s].lower[l]]++] = s;
-    free(fill);
+                eids[eoff[S->cells[s].lower[l]]++] = (uint32_t)s;
+    for (size_t f = H->nlower; f > 0; f--)
+        eoff[f] = eoff[f - 1];
+    eoff[0] = 0;
 
     if (d == 2) {
         /* Normalized area of each maximal polygon: sum over its edges (a, b) of the
          * lattice area of (b - a, p - a), p a fixed point of the polygon. */
         mpz_t *e1 = zvec_new(n), *e2 = zvec_new(n);
-        mpz_t g, len;
-        mpz_inits(g, len, NULL);
-        for (size_t s = 0; s < S->ncells && e1 && e2; s++) {
+        mpz_t g, len, acc;
+        mpz_inits(g, len, acc, NULL);
+        if (!e1 || !e2)
+            st = nomem(err);
+        for (size_t s = 0; s < S->ncells && st == TP_OK; s++) {
             const tp_subdiv_cell *sig = &S->cells[s];
             if (sig->dim != 2)
                 continue;
-            tp_complex_cell *c = &C->cells[cell_of_sub[s]];
             for (size_t t = 0; t < sig->npts; t++)
                 mark[sig->pts[t]] = true;
-            size_t f = sig->lower[0];
+            size_t f = sig->lower[0]; /* the only lower facet of a maximal cell */
+            mpz_set_ui(acc, 0);
             for (size_t q = eoff[f]; q < eoff[f + 1]; q++) {
                 const tp_subdiv_cell *e = &S->cells[eids[q]];
                 bool inside = true;
@@ -1019,14 +1144,18 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
                     exp_diff(e2, P, sig->pts[0], lo);
                     minors_gcd(g, e1, e2, n);
                 }
-                mpz_add(c->mult, c->mult, g);
+                mpz_add(acc, acc, g);
             }
             for (size_t t = 0; t < sig->npts; t++)
                 mark[sig->pts[t]] = false;
+            if (!tp_arena_zview(&C->limbs, &C->vmult[f], (const mpz_t *)&acc, 1))
+                st = nomem(err);
         }
-        mpz_clears(g, len, NULL);
+        mpz_clears(g, len, acc, NULL);
         zvec_free(e1, n);
         zvec_free(e2, n);
+        if (st != TP_OK)
+            goto done;
     }
 
     /* Balancing of every codimension-2 cell. */
@@ -1041,7 +1170,7 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
             if (S->cells[s].dim != 2)
                 continue;
             bool ok = false;
-            tp_status bs = check_balance(S, P, s, eoff, eids, mark, cell_of_sub, C, &ws, &ok);
+            tp_status bs = check_balance(S, P, s, eoff, eids, mark, C, &ws, &ok);
             if (bs == TP_ENOMEM) {
                 bal_ws_clear(&ws);
                 st = nomem(err);
@@ -1093,7 +1222,7 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
         for (size_t s = 0; s < S->ncells; s++) {
             const tp_subdiv_cell *sig = &S->cells[s];
             if (sig->dim == 2 &&
-                (sig->npts != 3 || mpz_cmp_ui(C->cells[cell_of_sub[s]].mult, 1) != 0))
+                (sig->npts != 3 || mpz_cmp_ui(C->vmult[sig->lower[0]], 1) != 0))
                 C->smooth = 0;
         }
     }
@@ -1101,65 +1230,105 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
     /* Max convention: negate everything geometric. */
     if (max) {
         for (size_t i = 0; i < C->nverts * n; i++)
-            mpq_neg(C->verts[i], C->verts[i]);
+            tp_qview_neg(C->verts[i]);
         for (size_t i = 0; i < C->nrays * n; i++)
             mpz_neg(C->rays[i], C->rays[i]);
     }
 
-    /* Canonical order: sort vertices and rays, remap, sort cells. */
+    /* The scratch arrays are no longer needed: give them back before sorting. */
+    free(ray_used);
+    tp_big_free(eoff);
+    tp_big_free(eids);
+    free(mark);
+    free(rmap);
+    eoff = rmap = NULL;
+    eids = NULL;
+    ray_used = mark = NULL;
+
+    /* Canonical order: sort vertices and rays, remap, sort cells. Rows are permuted in
+     * place by moving the mpq_t / mpz_t structs themselves (no new limbs). */
     size_t nref = C->nverts > C->nrays ? C->nverts : C->nrays;
-    refs = malloc((nref ? nref : 1) * sizeof *refs);
-    vmap = malloc((nref ? nref : 1) * sizeof *vmap);
-    if (!refs || !vmap) {
+    vmap = tp_big_alloc((nref ? nref : 1) * sizeof *vmap);
+    void *row = malloc(n * sizeof(mpq_t) + 1); /* one row of verts or rays */
+    if (!vmap || !row) {
+        free(row);
         st = nomem(err);
         goto done;
     }
-    {
-        for (size_t v = 0; v < C->nverts; v++)
-            refs[v] = (rowref){&C->verts[v * n], NULL, n, v};
-        qsort(refs, C->nverts, sizeof *refs, cmp_rowref);
-        /* permuted by moving the mpq_t structs themselves (no new limbs) */
-        mpq_t *nv = malloc((C->nverts * n + 1) * sizeof *nv);
-        if (!nv) {
+    for (int pass = 0; pass < 2; pass++) {
+        size_t m = pass == 0 ? C->nverts : C->nrays;
+        ord = tp_big_alloc((m ? m : 1) * sizeof *ord);
+        if (!ord) {
+            free(row);
             st = nomem(err);
             goto done;
         }
-        for (size_t k = 0; k < C->nverts; k++) {
-            vmap[refs[k].idx] = k;
-            memcpy(&nv[k * n], &C->verts[refs[k].idx * n], n * sizeof *nv);
-        }
-        free(C->verts);
-        C->verts = nv;
+        for (size_t v = 0; v < m; v++)
+            ord[v] = (uint32_t)v; /* m < 2^32: the subdivision's facet limit */
+        rowctx rc = {pass == 0 ? (const mpq_t *)C->verts : NULL,
+                     pass == 0 ? NULL : (const mpz_t *)C->rays, n};
+        qsort_r(ord, m, sizeof *ord, cmp_row_r, &rc);
+        for (size_t k = 0; k < m; k++)
+            vmap[ord[k]] = k;
+        tp_big_free(ord);
+        ord = NULL;
         for (size_t i = 0; i < C->ncells; i++) {
             tp_complex_cell *c = &C->cells[i];
-            for (size_t t = 0; t < c->nverts; t++)
-                c->verts[t] = vmap[c->verts[t]];
-            sort_small(c->verts, c->nverts);
+            size_t *lst = pass == 0 ? c->verts : tp_complex_cell_rays(c);
+            size_t cnt = pass == 0 ? c->nverts : c->nrays;
+            for (size_t t = 0; t < cnt; t++)
+                lst[t] = vmap[lst[t]];
+            sort_small(lst, cnt);
+        }
+        if (pass == 0 && C->vmult) {
+            /* vmult follows the vertices: permute a copy of the map first */
+            size_t *vm2 = malloc((m ? m : 1) * sizeof *vm2);
+            if (!vm2) {
+                free(row);
+                st = nomem(err);
+                goto done;
+            }
+            memcpy(vm2, vmap, m * sizeof *vm2);
+            mpz_t zt;
+            permute_rows(C->vmult, sizeof *C->vmult, vm2, m, zt);
+            free(vm2);
+        }
+        if (pass == 0)
+            permute_rows(C->verts, n * sizeof *C->verts, vmap, m, row);
+        else
+            permute_rows(C->rays, n * sizeof *C->rays, vmap, m, row);
+    }
+    free(row);
+    tp_big_free(vmap);
+    vmap = NULL;
+    /* Cells: sort indices, then move cell k to position k along the cycles of the
+     * permutation (ord[k] = old position of the cell that goes to k). */
+    ord = tp_big_alloc((C->ncells ? C->ncells : 1) * sizeof *ord);
+    if (!ord) {
+        st = nomem(err);
+        goto done;
+    }
+    for (size_t i = 0; i < C->ncells; i++)
+        ord[i] = (uint32_t)i; /* fewer than 2^32 cells, checked above */
+    qsort_r(ord, C->ncells, sizeof *ord, cmp_cell_r, C->cells);
+    for (size_t i = 0; i < C->ncells; i++) {
+        if (ord[i] == i)
+            continue;
+        tp_complex_cell tmp = C->cells[i];
+        size_t j = i;
+        for (;;) {
+            size_t k = ord[j];
+            ord[j] = (uint32_t)j;
+            if (k == i) {
+                C->cells[j] = tmp;
+                break;
+            }
+            C->cells[j] = C->cells[k];
+            j = k;
         }
     }
-    {
-        for (size_t r = 0; r < C->nrays; r++)
-            refs[r] = (rowref){NULL, &C->rays[r * n], n, r};
-        qsort(refs, C->nrays, sizeof *refs, cmp_rowref);
-        mpz_t *nrz = malloc((C->nrays * n + 1) * sizeof *nrz);
-        if (!nrz) {
-            st = nomem(err);
-            goto done;
-        }
-        for (size_t k = 0; k < C->nrays; k++) {
-            vmap[refs[k].idx] = k;
-            memcpy(&nrz[k * n], &C->rays[refs[k].idx * n], n * sizeof *nrz);
-        }
-        free(C->rays);
-        C->rays = nrz;
-        for (size_t i = 0; i < C->ncells; i++) {
-            tp_complex_cell *c = &C->cells[i];
-            for (size_t t = 0; t < c->nrays; t++)
-                c->rays[t] = vmap[c->rays[t]];
-            sort_small(c->rays, c->nrays);
-        }
-    }
-    qsort(C->cells, C->ncells, sizeof *C->cells, cmp_cell);
+    tp_big_free(ord);
+    ord = NULL;
 
     /* Rays by direction with total weight (curves): unbounded top cells with one ray. */
     if (C->is_curve) {
@@ -1182,19 +1351,19 @@ tp_status tp_complex_build(tp_complex *C, const tp_subdiv *S, const tp_points *P
         for (size_t i = 0; i < C->ncells; i++) {
             const tp_complex_cell *c = &C->cells[i];
             if (c->dim == (int)n - 1 && c->nrays == 1)
-                mpz_add(C->raydeg[c->rays[0]].weight, C->raydeg[c->rays[0]].weight,
+                mpz_add(C->raydeg[tp_complex_cell_rays(c)[0]].weight,
+                        C->raydeg[tp_complex_cell_rays(c)[0]].weight,
                         c->weight);
         }
     }
 
 done:
-    free(vmap);
+    tp_big_free(vmap);
     free(rmap);
-    free(refs);
-    free(cell_of_sub);
+    tp_big_free(ord);
     free(ray_used);
-    free(eoff);
-    free(eids);
+    tp_big_free(eoff);
+    tp_big_free(eids);
     free(mark);
     if (st != TP_OK)
         tp_complex_clear(C);
@@ -1215,7 +1384,8 @@ tp_status tp_complex_check(const tp_complex *C, tp_error *err)
             if (c->verts[t] >= C->nverts || (t && c->verts[t - 1] >= c->verts[t]))
                 return tp_error_set(err, TP_EINTERNAL, 0, 0, "cell %zu: bad vertex list", i);
         for (size_t t = 0; t < c->nrays; t++)
-            if (c->rays[t] >= C->nrays || (t && c->rays[t - 1] >= c->rays[t]))
+            if (tp_complex_cell_rays(c)[t] >= C->nrays ||
+                (t && tp_complex_cell_rays(c)[t - 1] >= tp_complex_cell_rays(c)[t]))
                 return tp_error_set(err, TP_EINTERNAL, 0, 0, "cell %zu: bad ray list", i);
         if (c->dim == (int)n - 1 && mpz_sgn(c->weight) <= 0)
             return tp_error_set(err, TP_EINTERNAL, 0, 0, "top cell %zu has weight <= 0", i);

@@ -500,7 +500,8 @@ static tp_status curve_data_make(curve_data *D, const tp_trop *T, tp_error *err)
             e.type = 1;
             memcpy(e.p, D->v + 2 * cl->verts[0], sizeof e.p);
             for (int k = 0; k < 2; k++)
-                e.d[k] = mpz_get_d(C->rays[cl->rays[0] * n + (size_t)D->axes[k]]);
+                e.d[k] = mpz_get_d(
+                    C->rays[tp_complex_cell_rays(cl)[0] * n + (size_t)D->axes[k]]);
         } else if (cl->nverts == 1 && cl->nrays == 0 && n == 2 && C->nlin == 1) {
             e.type = 2;
             memcpy(e.p, D->v + 2 * cl->verts[0], sizeof e.p);
@@ -509,7 +510,7 @@ static tp_status curve_data_make(curve_data *D, const tp_trop *T, tp_error *err)
         } else {
             return tp_error_set(err, TP_EINTERNAL, 0, 0,
                                 "cell %zu of the curve has %zu vertices and %zu rays", c,
-                                cl->nverts, cl->nrays);
+                                (size_t)cl->nverts, (size_t)cl->nrays);
         }
         e.weight = mpz_get_str(NULL, 10, cl->weight);
         if (!e.weight)
@@ -1399,7 +1400,7 @@ tp_status tp_surface_mesh_build(tp_surface_mesh *M, const tp_trop *T, const doub
             for (size_t r = 0; r < cl->nrays; r++) {
                 double d[3], len = 0;
                 for (int k = 0; k < 3; k++) {
-                    d[k] = mpz_get_d(C->rays[cl->rays[r] * 3 + (size_t)k]);
+                    d[k] = mpz_get_d(C->rays[tp_complex_cell_rays(cl)[r] * 3 + (size_t)k]);
                     len += d[k] * d[k];
                 }
                 len = sqrt(len);

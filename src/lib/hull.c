@@ -13,16 +13,9 @@ void tp_hull_init(tp_hull *H)
 {
     memset(H, 0, sizeof *H);
     H->dim = -1;
-}
-
-/* A lower facet's w and pts share one block (w first), owned through w. */
-static void facet_clear(tp_hull_facet *f, size_t n)
-{
-    if (f->w) {
-        for (size_t j = 0; j < n; j++)
-            mpq_clear(f->w[j]);
-        free(f->w);
-    }
+    tp_arena_init(&H->pts_mem);
+    tp_arena_init(&H->w_mem);
+    tp_arena_init(&H->w_limbs);
 }
 
 static void side_clear(tp_hull_side *s, size_t n)
@@ -37,9 +30,10 @@ static void side_clear(tp_hull_side *s, size_t n)
 
 void tp_hull_clear(tp_hull *H)
 {
-    for (size_t i = 0; i < H->nlower; i++)
-        facet_clear(&H->lower[i], H->n);
-    free(H->lower);
+    free(H->lower); /* facets' pts and w live in the arenas */
+    tp_arena_free(&H->pts_mem);
+    tp_arena_free(&H->w_mem);
+    tp_arena_free(&H->w_limbs);
     for (size_t i = 0; i < H->nsides; i++)
         side_clear(&H->sides[i], H->n);
     free(H->sides);
@@ -119,18 +113,34 @@ tp_status tp_hull_push_lower(tp_hull *H, const size_t *pts, size_t npts, mpq_t *
     }
     tp_hull_facet *f = &H->lower[H->nlower];
     memset(f, 0, sizeof *f);
-    f->w = malloc(H->n * sizeof *f->w + (npts ? npts : 1) * sizeof *f->pts);
-    if (!f->w)
+    f->pts = tp_arena_alloc(&H->pts_mem, npts * sizeof *f->pts);
+    f->w = tp_arena_alloc(&H->w_mem, H->n * sizeof *f->w);
+    if (!f->pts || !f->w)
         return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (lower hull)");
-    f->pts = (size_t *)(void *)(f->w + H->n);
     if (npts)
         memcpy(f->pts, pts, npts * sizeof *f->pts);
     sort_small(f->pts, npts);
     f->npts = npts;
-    for (size_t j = 0; j < H->n; j++) {
-        mpq_init(f->w[j]);
-        mpq_set(f->w[j], w[j]);
+    bool ok;
+    if (H->nlin > 0) {
+        /* reduce modulo L now: the stored values are read-only */
+        mpq_t *r = malloc(H->n * sizeof *r);
+        if (!r)
+            return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (lower hull)");
+        for (size_t j = 0; j < H->n; j++) {
+            mpq_init(r[j]);
+            mpq_set(r[j], w[j]);
+        }
+        tp_hull_reduce_q(H, r);
+        ok = tp_arena_qview(&H->w_limbs, f->w, (const mpq_t *)r, H->n);
+        for (size_t j = 0; j < H->n; j++)
+            mpq_clear(r[j]);
+        free(r);
+    } else {
+        ok = tp_arena_qview(&H->w_limbs, f->w, (const mpq_t *)w, H->n);
     }
+    if (!ok)
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (lower hull)");
     H->nlower++;
     return TP_OK;
 }
@@ -441,8 +451,13 @@ static int cmp_side(const void *x, const void *y)
 tp_status tp_hull_finish(tp_hull *H, tp_error *err)
 {
     (void)err;
-    for (size_t i = 0; i < H->nlower; i++)
-        tp_hull_reduce_q(H, H->lower[i].w);
+    /* lower facet normals were reduced by tp_hull_push_lower */
+    if (H->nlower >= 64) {
+        /* give back the spare capacity (up to half the array) */
+        tp_hull_facet *g = realloc(H->lower, H->nlower * sizeof *g);
+        if (g)
+            H->lower = g;
+    }
     for (size_t i = 0; i < H->nsides; i++)
         tp_hull_reduce_z(H, H->sides[i].u);
     /* engines often emit in order already: sort only when needed */

@@ -23,10 +23,12 @@ tp_status tp_hull_lower_fast(tp_hull *H, const tp_points *P, bool *handled, tp_e
  * in the coordinates it works in, at most 2^26 points. */
 bool tp_hull_fast_accepts(const tp_hull *H, const tp_points *P);
 
-/* Sort facets and sides, reduce w and u modulo L, make u primitive. */
+/* Sort facets and sides, reduce u modulo L, make u primitive (w is reduced when
+ * pushed), trim the facet array: nothing is pushed after it. */
 tp_status tp_hull_finish(tp_hull *H, tp_error *err);
 
-/* Append a lower facet / side (the arrays are copied; w, u have H->n entries). */
+/* Append a lower facet / side (the arrays are copied; w, u have H->n entries). A lower
+ * facet's w is reduced modulo L (H->lin must be set) and stored read-only. */
 tp_status tp_hull_push_lower(tp_hull *H, const size_t *pts, size_t npts, mpq_t *w,
                              tp_error *err);
 tp_status tp_hull_push_side(tp_hull *H, const size_t *pts, size_t npts, mpz_t *u,

@@ -12,6 +12,9 @@
 
 #include <stdint.h>
 #include <stdlib.h>
+#ifdef __GLIBC__
+#include <malloc.h>
+#endif
 #include <string.h>
 #include <time.h>
 
@@ -19,12 +22,13 @@ void tp_subdiv_init(tp_subdiv *S)
 {
     memset(S, 0, sizeof *S);
     tp_hull_init(&S->hull);
+    tp_arena_init(&S->pool);
 }
 
 void tp_subdiv_clear(tp_subdiv *S)
 {
-    free(S->cells);
-    free(S->pool);
+    tp_big_free(S->cells);
+    tp_arena_free(&S->pool);
     free(S->unused);
     tp_hull_clear(&S->hull);
     tp_subdiv_init(S);
@@ -96,11 +100,11 @@ static int affine_rank(const tp_points *P, const size_t *pts, size_t npts, int u
 
 /* ---- the cells under construction ----------------------------------------------- */
 
-/* Point lists and facet lists of all cells live in one growing array (`arena`); while
- * it grows, cells refer to it by offsets (pofs / lofs), turned into pointers at the
- * end. A hash set of point lists (open addressing; a slot holds cell index + 1 in
- * its low 40 bits and the top 24 bits of the list's hash above, 0 = empty) finds a
- * cell by its points with one memory access per probe. */
+/* Point lists and facet lists of all cells live in an arena (S->pool), so pointers to
+ * them stay valid while cells are added; a maximal cell shares its point list with its
+ * lower facet, a face whose points are a run of its parent's list shares that run. A hash set of point lists (open addressing, at most 3/4 full; a slot
+ * holds cell index + 1 in its low 40 bits and the top 24 bits of the list's hash
+ * above, 0 = empty) finds a cell by its points with one memory access per probe. */
 #define SLOT_IDX(x) ((size_t)((x) & (((uint64_t)1 << 40) - 1)))
 #define SLOT_TAG(h) ((h) >> 40 << 40)
 
@@ -123,32 +127,19 @@ static uint64_t hash_pts(const size_t *pts, size_t npts)
 typedef struct {
     size_t ncells, cap;
     tp_subdiv_cell *cells;
-    size_t *pofs;        /* cap: offset of each cell's points in arena */
-    size_t *lofs;        /* cap: offset of each cell's lower then side facets */
-    size_t *arena;
-    size_t alen, acap;
+    tp_arena *mem;       /* S->pool */
     cellset set;
 } builder;
 
 static inline const size_t *cell_pts(const builder *b, size_t c)
 {
-    return b->arena + b->pofs[c];
+    return b->cells[c].pts;
 }
 
-/* Room for m more entries in the arena (it may move). */
-static bool arena_reserve(builder *b, size_t m)
+/* the set holds at most 3/4 of its capacity */
+static bool set_full(size_t cells, size_t cap)
 {
-    if (b->alen + m <= b->acap)
-        return true;
-    size_t ncap = b->acap ? b->acap : 1024;
-    while (ncap < b->alen + m)
-        ncap = ncap / 2 * 3;
-    size_t *g = realloc(b->arena, ncap * sizeof *g);
-    if (!g)
-        return false;
-    b->arena = g;
-    b->acap = ncap;
-    return true;
+    return cells / 3 * 4 + (cells % 3) * 4 / 3 >= cap;
 }
 
 static bool same_pts(const builder *b, size_t c, const size_t *pts, size_t npts)
@@ -160,11 +151,11 @@ static bool same_pts(const builder *b, size_t c, const size_t *pts, size_t npts)
 static bool set_grow(builder *b)
 {
     size_t ncap = b->set.cap ? b->set.cap * 2 : 1024;
-    while (ncap < 2 * (b->ncells + 1))
+    while (set_full(b->ncells + 1, ncap))
         ncap *= 2;
     if (b->ncells + 1 >= ((uint64_t)1 << 40))
         return false;
-    uint64_t *slot = calloc(ncap, sizeof *slot);
+    uint64_t *slot = tp_big_alloc(ncap * sizeof *slot);
     if (!slot)
         return false;
     for (size_t i = 0; i < b->ncells; i++) {
@@ -174,7 +165,7 @@ static bool set_grow(builder *b)
             k = (k + 1) & (ncap - 1);
         slot[k] = SLOT_TAG(h) | (uint64_t)(i + 1);
     }
-    free(b->set.slot);
+    tp_big_free(b->set.slot);
     b->set.slot = slot;
     b->set.cap = ncap;
     return true;
@@ -196,38 +187,34 @@ static size_t set_find(const builder *b, const size_t *pts, size_t npts, uint64_
     return SIZE_MAX;
 }
 
-/* Append a new cell (pts copied, hash h); returns its index or SIZE_MAX on no
- * memory. */
-static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts, uint64_t h)
+/* Append a new cell (hash h); its point list is `shared` when not NULL (a list that
+ * outlives the subdivision's cells, equal to pts), else a copy of pts. Returns its
+ * index or SIZE_MAX on no memory. */
+static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts, uint64_t h,
+                       size_t *shared)
 {
-    if ((b->ncells + 1) * 2 > b->set.cap && !set_grow(b))
+    if (set_full(b->ncells + 1, b->set.cap) && !set_grow(b))
         return SIZE_MAX;
     if (b->ncells == b->cap) {
         size_t ncap = b->cap ? b->cap / 2 * 3 : 256;
-        tp_subdiv_cell *g = realloc(b->cells, ncap * sizeof *g);
+        tp_subdiv_cell *g = tp_big_realloc(b->cells, ncap * sizeof *g);
         if (!g)
             return SIZE_MAX;
         b->cells = g;
-        size_t *po = realloc(b->pofs, ncap * sizeof *po);
-        if (!po)
-            return SIZE_MAX;
-        b->pofs = po;
-        size_t *lo = realloc(b->lofs, ncap * sizeof *lo);
-        if (!lo)
-            return SIZE_MAX;
-        b->lofs = lo;
         b->cap = ncap;
     }
-    if (!arena_reserve(b, npts))
-        return SIZE_MAX;
+    size_t *own = shared;
+    if (!own) {
+        own = tp_arena_alloc(b->mem, npts * sizeof *own);
+        if (!own)
+            return SIZE_MAX;
+        memcpy(own, pts, npts * sizeof *pts);
+    }
     tp_subdiv_cell *c = &b->cells[b->ncells];
     memset(c, 0, sizeof *c);
     c->dim = dim;
     c->npts = npts;
-    b->pofs[b->ncells] = b->alen;
-    b->lofs[b->ncells] = 0;
-    memcpy(b->arena + b->alen, pts, npts * sizeof *pts);
-    b->alen += npts;
+    c->pts = own;
     size_t k = (size_t)h & (b->set.cap - 1);
     while (b->set.slot[k])
         k = (k + 1) & (b->set.cap - 1);
@@ -300,8 +287,8 @@ static void sort_small(size_t *v, size_t m)
 }
 
 /* Fill the lower / side facet lists of cell ci: the facets containing every point of
- * it, appended to the arena. `count` is a zeroed scratch array over facet ids,
- * `touched` a scratch list; both left clean. */
+ * it, one piece of the arena (sides right after lower). `count` is a zeroed scratch
+ * array over facet ids, `touched` a scratch list; both left clean. */
 static bool set_containing(builder *b, size_t ci, const tp_hull *H, const pindex *ix,
                            size_t *count, size_t *touched)
 {
@@ -324,14 +311,14 @@ static bool set_containing(builder *b, size_t ci, const tp_hull *H, const pindex
             else
                 ns++;
         }
-    if (!arena_reserve(b, nl + ns)) {
+    size_t *lower = tp_arena_alloc(b->mem, (nl + ns) * sizeof *lower);
+    if (!lower) {
         for (size_t k = 0; k < nt; k++)
             count[touched[k]] = 0;
         return false;
     }
-    size_t *lower = b->arena + b->alen, *sides = lower + nl;
-    b->lofs[ci] = b->alen;
-    b->alen += nl + ns;
+    size_t *sides = lower + nl;
+    c->lower = lower; /* sides follow: tp_subdiv_sides */
     c->nlower = c->nsides = 0;
     for (size_t k = 0; k < nt; k++) {
         size_t f = touched[k];
@@ -370,6 +357,20 @@ static int cmp_cell(const void *x, const void *y)
     return (a->npts > b->npts) - (a->npts < b->npts);
 }
 
+/* Return the free pages inside malloc's heap to the system after a big run (a hull of
+ * 2^16 facets or more; small runs, e.g. a batch of polynomials, skip the walk over the
+ * heap). Big temporary arrays freed in the middle of the heap otherwise stay resident,
+ * and the next stage's tables (tp_big_alloc, outside the heap) cannot reuse them. */
+static void give_back_memory(const tp_hull *H)
+{
+#ifdef __GLIBC__
+    if (H->nlower >= ((size_t)1 << 16))
+        malloc_trim(0);
+#else
+    (void)H;
+#endif
+}
+
 tp_status tp_subdiv_build(tp_subdiv *S, const tp_points *P, tp_engine engine, tp_error *err)
 {
     return tp_subdiv_build_limited(S, P, engine, 0, err);
@@ -388,14 +389,23 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
     S->hull_ms = (double)(t1.tv_sec - t0.tv_sec) * 1e3 + (double)(t1.tv_nsec - t0.tv_nsec) * 1e-6;
     if (st != TP_OK)
         return st;
+    give_back_memory(&S->hull); /* the hull engine's scratch */
     const tp_hull *H = &S->hull;
     size_t nfac = H->nlower + H->nsides;
+    if (H->npoints >= UINT32_MAX || nfac >= UINT32_MAX)
+        return tp_error_set(err, TP_ELIMIT, 0, 0,
+                            "%zu points and %zu facets: the subdivision takes fewer than "
+                            "2^32 of each", H->npoints, nfac);
+
     /* Finding a face costs about dim^2 rank work in high dimension: count faces in
      * units of max(1, dim^2 / 4) against the limit. */
     size_t unit = (size_t)(H->dim > 2 ? H->dim * H->dim / 4 : 1);
     size_t cell_cap = max_cells / unit;
+    if (cell_cap >= UINT32_MAX)
+        cell_cap = UINT32_MAX - 1; /* cell indices are 32-bit in the complex */
 
     builder b = {0};
+    b.mem = &S->pool;
     pindex ix = {0};
     size_t *count = calloc(nfac + 1, sizeof *count);
     size_t *touched = malloc((nfac + 1) * sizeof *touched);
@@ -406,24 +416,19 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
         goto done;
     }
 
-    /* Capacity for a plane triangulation with T triangles (about 3T/2 edges and T/2
-     * vertices, 13.5 T list entries); other cases grow from there. */
-    if (!arena_reserve(&b, 14 * H->nlower + 16)) {
+    /* Capacity for a plane triangulation with T triangles: 1 + 3T + (boundary edges)
+     * faces by Euler's formula; other cases grow from there. */
+    b.cap = H->dim == 2 ? 3 * H->nlower + H->nlower / 16 + 64
+                        : 3 * H->nlower + H->npoints + 16;
+    b.cells = tp_big_alloc(b.cap * sizeof *b.cells);
+    if (!b.cells) {
         st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
         goto done;
     }
-    b.cap = 3 * H->nlower + H->npoints + 16;
-    b.cells = malloc(b.cap * sizeof *b.cells);
-    b.pofs = malloc(b.cap * sizeof *b.pofs);
-    b.lofs = malloc(b.cap * sizeof *b.lofs);
-    if (!b.cells || !b.pofs || !b.lofs) {
-        st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
-        goto done;
-    }
-    b.set.cap = 1;
-    while (b.set.cap < 2 * b.cap)
+    b.set.cap = 1024;
+    while (set_full(b.cap, b.set.cap))
         b.set.cap *= 2;
-    b.set.slot = calloc(b.set.cap, sizeof *b.set.slot);
+    b.set.slot = tp_big_alloc(b.set.cap * sizeof *b.set.slot);
     if (!b.set.slot) {
         st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
         goto done;
@@ -432,7 +437,7 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
     /* Maximal cells. */
     for (size_t f = 0; f < H->nlower; f++) {
         size_t c = add_cell(&b, H->dim, H->lower[f].pts, H->lower[f].npts,
-                            hash_pts(H->lower[f].pts, H->lower[f].npts));
+                            hash_pts(H->lower[f].pts, H->lower[f].npts), H->lower[f].pts);
         if (c == SIZE_MAX || !set_containing(&b, c, H, &ix, count, touched)) {
             st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
             goto done;
@@ -462,10 +467,12 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
                 /* G ∩ X, in G's (ascending) point order. */
                 size_t fn;
                 const size_t *fp = facet_pts(H, f, &fn);
-                size_t ni = 0, a = 0, c2 = 0;
-                const size_t *gp = cell_pts(&b, g); /* refetched: add_cell may move it */
+                size_t ni = 0, a = 0, c2 = 0, first = 0;
+                size_t *gp = b.cells[g].pts; /* refetched: add_cell may move b.cells */
                 while (a < gn && c2 < fn) {
                     if (gp[a] == fp[c2]) {
+                        if (ni == 0)
+                            first = a;
                         inter[ni++] = gp[a];
                         a++;
                         c2++;
@@ -500,7 +507,10 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
                                       cell_cap, H->dim, max_cells);
                     goto done;
                 }
-                size_t c = add_cell(&b, k - 1, inter, ni, h);
+                /* a run of G's own list is shared rather than copied (an edge of a
+                 * triangle, every vertex) */
+                bool run = ni > 0 && gp[first + ni - 1] == inter[ni - 1];
+                size_t c = add_cell(&b, k - 1, inter, ni, h, run ? gp + first : NULL);
                 if (c == SIZE_MAX) {
                     st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
                     goto done;
@@ -519,33 +529,17 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
         hi = b.ncells;
     }
 
-    free(b.set.slot);
+    tp_big_free(b.set.slot);
     b.set.slot = NULL;
-    /* Give back unused capacity, then offsets become pointers; then sort. Cells were made in dim-descending blocks,
+    /* Give back unused capacity, then sort. Cells were made in dim-descending blocks,
      * so only blocks need sorting, and a block already in order is left alone. */
-    if (b.alen && b.alen < b.acap) {
-        size_t *g = realloc(b.arena, b.alen * sizeof *g);
-        if (g) {
-            b.arena = g;
-            b.acap = b.alen;
-        }
-    }
     if (b.ncells && b.ncells < b.cap) {
-        tp_subdiv_cell *g = realloc(b.cells, b.ncells * sizeof *g);
+        tp_subdiv_cell *g = tp_big_realloc(b.cells, b.ncells * sizeof *g);
         if (g) {
             b.cells = g;
             b.cap = b.ncells;
         }
     }
-    for (size_t c = 0; c < b.ncells; c++) {
-        tp_subdiv_cell *x = &b.cells[c];
-        x->pts = b.arena + b.pofs[c];
-        x->lower = b.arena + b.lofs[c];
-        x->sides = x->lower + x->nlower;
-    }
-    free(b.pofs);
-    free(b.lofs);
-    b.pofs = b.lofs = NULL;
     for (size_t s0 = 0; s0 < b.ncells;) {
         size_t s1 = s0 + 1;
         bool sorted = true;
@@ -560,10 +554,8 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
     }
     S->cells = b.cells;
     S->ncells = b.ncells;
-    S->pool = b.arena;
     b.cells = NULL;
     b.ncells = 0;
-    b.arena = NULL;
 
     S->unused = malloc((H->npoints ? H->npoints : 1) * sizeof *S->unused);
     if (!S->unused) {
@@ -575,17 +567,15 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
             S->unused[S->nunused++] = i;
 
 done:
-    free(b.cells);
-    free(b.pofs);
-    free(b.lofs);
-    free(b.arena);
-    free(b.set.slot);
+    tp_big_free(b.cells);
+    tp_big_free(b.set.slot);
     free(ix.off);
     free(ix.ids);
     free(count);
     free(touched);
     free(inter);
     free(cand);
+    give_back_memory(&S->hull);
     return st;
 }
 

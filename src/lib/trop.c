@@ -101,7 +101,8 @@ static tp_status run(tp_trop *T, const tp_trop_options *opt, tp_error *err)
                    (double)(t1.tv_nsec - t0.tv_nsec) * 1e-6 - T->ms_hull;
     if (st != TP_OK)
         return st;
-    st = tp_complex_build(&T->complex, &T->subdiv, &T->points, T->vars, opt->max, err);
+    st = tp_complex_build_move(&T->complex, &T->subdiv, &T->points, T->vars, opt->max,
+                               err);
     clock_gettime(CLOCK_THREAD_CPUTIME_ID, &t2);
     T->ms_complex = (double)(t2.tv_sec - t1.tv_sec) * 1e3 + (double)(t2.tv_nsec - t1.tv_nsec) * 1e-6;
     return st;

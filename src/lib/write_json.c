@@ -115,8 +115,9 @@ static void jw_i64(jw *w, int64_t v)
 /* An integer as decimal digits (as mpz_out_str would print it). */
 static void jw_mpz(jw *w, const mpz_t z)
 {
-    if (mpz_fits_slong_p(z)) {
-        jw_i64(w, (int64_t)mpz_get_si(z));
+    int64_t v;
+    if (tp_z_get64(z, &v)) {
+        jw_i64(w, v);
         return;
     }
     char *s = mpz_get_str(NULL, 10, z);
@@ -202,8 +203,9 @@ static void qvec_free(mpq_t *v, size_t n)
 static void put_rat(jw *f, const mpq_t q, bool negate)
 {
     jw_putc(f, '"');
-    if (mpz_fits_slong_p(mpq_numref(q)) && mpz_fits_slong_p(mpq_denref(q))) {
-        long a = mpz_get_si(mpq_numref(q)), b = mpz_get_si(mpq_denref(q));
+    int64_t a, b;
+    if (tp_z_get64(mpq_numref(q), &a) && tp_z_get64(mpq_denref(q), &b)) {
+        /* the common case: both fit int64 */
         if (negate && a < 0) {
             jw_u64(f, (uint64_t)0 - (uint64_t)a);
         } else {
@@ -221,9 +223,10 @@ static void put_rat(jw *f, const mpq_t q, bool negate)
     bool neg = (mpq_sgn(q) < 0) != negate && mpq_sgn(q) != 0;
     if (neg)
         jw_putc(f, '-');
-    mpz_t a; /* |numerator| as a read-only alias */
-    mpz_roinit_n(a, mpz_limbs_read(mpq_numref(q)), (mp_size_t)mpz_size(mpq_numref(q)));
-    jw_mpz(f, a);
+    mpz_t abs_num; /* |numerator| as a read-only alias */
+    mpz_roinit_n(abs_num, mpz_limbs_read(mpq_numref(q)),
+                 (mp_size_t)mpz_size(mpq_numref(q)));
+    jw_mpz(f, abs_num);
     if (mpz_cmp_ui(mpq_denref(q), 1) != 0) {
         jw_putc(f, '/');
         jw_mpz(f, mpq_denref(q));
@@ -403,8 +406,15 @@ static bool write_subdivision(jw *f, const tp_trop *T)
         /* a maximal cell lies on exactly one lower facet: its normal is that facet's;
          * a smaller cell's normal is the relative interior point of its dual cell
          * (already in the output convention); a vertex has none */
-        if (sc->dim == H->dim && sc->nlower == 1 && sc->lower[0] < H->nlower)
+        if (sc->dim == H->dim && sc->nlower == 1 && sc->lower[0] < H->nlower &&
+            H->lower[sc->lower[0]].w)
             put_rat_vec(f, H->lower[sc->lower[0]].w, n, T->max);
+        else if (sc->dim == H->dim && dual_of[c] != SIZE_MAX) {
+            /* the complex took the facet normals: the dual cell's only vertex, already
+             * in the output convention */
+            const tp_complex_cell *cc = &T->complex.cells[dual_of[c]];
+            put_rat_vec(f, T->complex.verts + cc->verts[0] * n, n, false);
+        }
         else if (dual_of[c] != SIZE_MAX) {
             tp_complex_interior(&T->complex, dual_of[c], ipt);
             put_rat_vec(f, ipt, n, false);
@@ -458,7 +468,7 @@ static bool write_complex(jw *f, const tp_trop *T)
         jw_puts(f, ", \"vertices\": ");
         put_idx_vec(f, cc->verts, cc->nverts);
         jw_puts(f, ", \"rays\": ");
-        put_idx_vec(f, cc->rays, cc->nrays);
+        put_idx_vec(f, tp_complex_cell_rays(cc), cc->nrays);
         jw_puts(f, ", \"weight\": ");
         jw_mpz(f, cc->weight);
         jw_puts(f, ", \"dual\": ");
@@ -476,9 +486,9 @@ static bool write_complex(jw *f, const tp_trop *T)
             put_str(f, cc->initial_form);
         else
             jw_puts(f, "null");
-        if (mpz_sgn(cc->mult) != 0) {
+        if (mpz_sgn(tp_complex_mult(C, c)) != 0) {
             jw_puts(f, ", \"multiplicity\": ");
-            jw_mpz(f, cc->mult);
+            jw_mpz(f, tp_complex_mult(C, c));
         }
         jw_putc(f, '}');
     }

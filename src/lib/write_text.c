@@ -360,6 +360,24 @@ static tp_status write_subdivision(FILE *f, const tp_trop *T, tp_error *err)
     table_header(&t, head);
     sbuf cols[4];
     memset(cols, 0, sizeof cols);
+    /* When the complex took the facet normals (tp_complex_build_move), a maximal cell's
+     * normal is the only vertex of its dual cell, already in the output convention. */
+    const tp_complex *C = &T->complex;
+    size_t *vert_of = NULL;
+    if (H->nlower && !H->lower[0].w) {
+        vert_of = malloc((S->ncells ? S->ncells : 1) * sizeof *vert_of);
+        if (!vert_of) {
+            table_clear(&t);
+            return oom(err);
+        }
+        for (size_t c = 0; c < S->ncells; c++)
+            vert_of[c] = SIZE_MAX;
+        for (size_t k = 0; k < C->ncells; k++) {
+            const tp_complex_cell *cc = &C->cells[k];
+            if (cc->dual < S->ncells && S->cells[cc->dual].dim == H->dim && cc->nverts == 1)
+                vert_of[cc->dual] = cc->verts[0];
+        }
+    }
     size_t nmax = 0;
     for (size_t c = 0; c < S->ncells; c++) {
         const tp_subdiv_cell *sc = &S->cells[c];
@@ -369,10 +387,15 @@ static tp_status write_subdivision(FILE *f, const tp_trop *T, tp_error *err)
         sb_printf(&cols[0], "%zu", c);
         sb_printf(&cols[1], "%d", sc->dim);
         sb_idx(&cols[2], "", sc->pts, sc->npts);
-        if (sc->dim == H->dim && sc->nlower == 1 && sc->lower[0] < H->nlower)
-            sb_qvec(&cols[3], H->lower[sc->lower[0]].w, n, T->max);
+        if (sc->dim == H->dim && sc->nlower == 1 && sc->lower[0] < H->nlower) {
+            if (H->lower[sc->lower[0]].w)
+                sb_qvec(&cols[3], H->lower[sc->lower[0]].w, n, T->max);
+            else if (vert_of && vert_of[c] != SIZE_MAX)
+                sb_qvec(&cols[3], C->verts + vert_of[c] * n, n, false);
+        }
         table_row(&t, cols);
     }
+    free(vert_of);
     if (t.oom) {
         table_clear(&t);
         return oom(err);
@@ -491,13 +514,13 @@ static tp_status write_complex(FILE *f, const tp_trop *T, tp_error *err)
         if (cc->nrays) {
             if (cc->nverts)
                 sb_puts(&cols[2], " + ");
-            sb_idx(&cols[2], "r", cc->rays, cc->nrays);
+            sb_idx(&cols[2], "r", tp_complex_cell_rays(cc), cc->nrays);
         }
         if (mpz_sgn(cc->weight) != 0)
             sb_z(&cols[3], cc->weight);
-        else if (mpz_sgn(cc->mult) != 0) {
+        else if (mpz_sgn(tp_complex_mult(C, c)) != 0) {
             sb_puts(&cols[3], "mult ");
-            sb_z(&cols[3], cc->mult);
+            sb_z(&cols[3], tp_complex_mult(C, c));
         } else
             sb_puts(&cols[3], "-");
         if (cc->dual < S->ncells)

@@ -59,7 +59,8 @@ static void test_generic_curves(void)
             tp_check(C.smooth == 1, "degree %ld: smooth", d);
             for (size_t i = 0; i < C.ncells; i++)
                 if (C.cells[i].dim == 0)
-                    tp_check(mpz_cmp_ui(C.cells[i].mult, 1) == 0, "degree %ld: multiplicity", d);
+                    tp_check(mpz_cmp_ui(tp_complex_mult(&C, i), 1) == 0,
+                             "degree %ld: multiplicity", d);
         }
         tp_complex_clear(&C);
         tp_subdiv_clear(&S);
@@ -153,10 +154,102 @@ static void test_random_balanced_and_max(void)
     }
 }
 
+/* tp_complex_build_move gives the same complex as tp_complex_build (a check of the
+ * storage only: the mathematics is checked above), takes every lower facet normal,
+ * and leaves a monomial's subdivision alone. Both engines, both conventions. */
+static bool same_complex(const tp_complex *A, const tp_complex *B)
+{
+    size_t n = A->n;
+    if (A->n != B->n || A->dim != B->dim || A->nverts != B->nverts ||
+        A->nrays != B->nrays || A->ncells != B->ncells || A->balanced != B->balanced ||
+        A->genus != B->genus || A->smooth != B->smooth)
+        return false;
+    for (size_t i = 0; i < A->nverts * n; i++)
+        if (!mpq_equal(A->verts[i], B->verts[i]))
+            return false;
+    for (size_t i = 0; i < A->nrays * n; i++)
+        if (mpz_cmp(A->rays[i], B->rays[i]) != 0)
+            return false;
+    for (size_t i = 0; i < A->ncells; i++) {
+        const tp_complex_cell *a = &A->cells[i], *b = &B->cells[i];
+        if (a->dim != b->dim || a->nverts != b->nverts || a->nrays != b->nrays ||
+            a->dual != b->dual || mpz_cmp(a->weight, b->weight) != 0 ||
+            mpz_cmp(tp_complex_mult(A, i), tp_complex_mult(B, i)) != 0)
+            return false;
+        for (size_t t = 0; t < a->nverts; t++)
+            if (a->verts[t] != b->verts[t])
+                return false;
+        for (size_t t = 0; t < a->nrays; t++)
+            if (tp_complex_cell_rays(a)[t] != tp_complex_cell_rays(b)[t])
+                return false;
+    }
+    return true;
+}
+
+static void test_move_equals_copy(void)
+{
+    tp_rng r;
+    tp_rng_seed(&r, tp_test_seed() + 4);
+    tp_error err;
+    tp_error_init(&err, NULL);
+    long iters = 120 * tp_test_multiplier();
+    for (long it = 0; it < iters; it++) {
+        size_t n = 1 + (size_t)(it % 3);
+        size_t count = it % 17 == 0 ? 1 : n + 1 + (size_t)tp_rng_range(&r, 0, 25);
+        bool max = it % 2 == 1;
+        tp_engine eng = it % 4 < 2 ? TP_ENGINE_AUTO : TP_ENGINE_CDD;
+        tp_points P;
+        pts_random(&P, &r, n, count, tp_rng_range(&r, 1, 5), tp_rng_range(&r, 0, 9));
+        tp_subdiv S1, S2;
+        tp_complex C1, C2;
+        tp_subdiv_init(&S1);
+        tp_subdiv_init(&S2);
+        tp_complex_init(&C1);
+        tp_complex_init(&C2);
+        bool ok = tp_subdiv_build(&S1, &P, eng, &err) == TP_OK &&
+                  tp_subdiv_build(&S2, &P, eng, &err) == TP_OK &&
+                  tp_complex_build(&C1, &S1, &P, NULL, max, &err) == TP_OK &&
+                  tp_complex_build_move(&C2, &S2, &P, NULL, max, &err) == TP_OK;
+        tp_check(ok, "move it %ld: %s", it, err.msg);
+        if (ok) {
+            tp_check(same_complex(&C1, &C2), "move it %ld (n=%zu): complexes differ", it,
+                     n);
+            tp_check(tp_complex_check(&C2, &err) == TP_OK, "move it %ld: %s", it, err.msg);
+            size_t kept = 0;
+            for (size_t f = 0; f < S2.hull.nlower; f++)
+                kept += S2.hull.lower[f].w != NULL;
+            bool monomial = S2.hull.dim <= 0;
+            tp_check(monomial ? kept == S2.hull.nlower : kept == 0,
+                     "move it %ld: %zu of %zu normals left behind", it, kept,
+                     S2.hull.nlower);
+            for (size_t f = 0; f < S1.hull.nlower; f++)
+                tp_check(S1.hull.lower[f].w != NULL, "copy it %ld: normal %zu taken", it,
+                         f);
+            /* a second build from S2 cannot copy what was moved */
+            if (!monomial) {
+                tp_complex C3;
+                tp_complex_init(&C3);
+                tp_check(tp_complex_build(&C3, &S2, &P, NULL, max, &err) == TP_EINTERNAL,
+                         "move it %ld: building again from a taken subdivision", it);
+                tp_complex_clear(&C3);
+            }
+        }
+        /* the complex outlives nothing it needs: clear the subdivision first */
+        tp_subdiv_clear(&S2);
+        if (ok)
+            tp_check(same_complex(&C1, &C2), "move it %ld: complex after clearing S", it);
+        tp_complex_clear(&C1);
+        tp_complex_clear(&C2);
+        tp_subdiv_clear(&S1);
+        tp_points_clear(&P);
+    }
+}
+
 int main(void)
 {
     test_generic_curves();
     test_trivial_full_support();
     test_random_balanced_and_max();
+    test_move_equals_copy();
     return tp_test_finish("t-complex");
 }

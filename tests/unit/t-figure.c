@@ -74,7 +74,7 @@ static void check_edges_match(const tp_figure *F, const tp_trop *T, const char *
             tp_check(fabs(it->xy[2] - qx) < 1e-6 && fabs(it->xy[3] - qy) < 1e-6,
                      "%s: edge %ld ends at its vertex", what, it->id);
         } else {
-            mpz_t *r = C->rays + cl->rays[0] * n;
+            mpz_t *r = C->rays + tp_complex_cell_rays(cl)[0] * n;
             double dx = mpz_get_d(r[a0]), dy = -mpz_get_d(r[a1]);
             double ex = it->xy[2] - it->xy[0], ey = it->xy[3] - it->xy[1];
             double crs = dx * ey - dy * ex, dt = dx * ex + dy * ey;
