@@ -379,24 +379,31 @@ static bool write_subdivision(jw *f, const tp_trop *T)
     const tp_subdiv *S = &T->subdiv;
     const tp_hull *H = &S->hull;
     size_t n = T->points.n;
-    /* subdivision cell -> complex cell dual to it */
-    size_t *dual_of = malloc((S->ncells ? S->ncells : 1) * sizeof *dual_of);
+    /* subdivision cell -> complex cell dual to it. The complex is built with cell k
+     * dual to subdivision cell k (complex.c): then no table is needed (it would be
+     * 8 bytes a cell at the peak of the run). */
+    const tp_complex *C = &T->complex;
+    bool same = true;
+    for (size_t k = 0; k < C->ncells && same; k++)
+        same = C->cells[k].dual == k;
+    size_t *dual_of = same ? NULL : malloc((S->ncells ? S->ncells : 1) * sizeof *dual_of);
     mpq_t *ipt = qvec_new(n);
-    if (!dual_of || !ipt) {
+    if ((!same && !dual_of) || !ipt) {
         free(dual_of);
         qvec_free(ipt, n);
         return false;
     }
-    {
+    if (dual_of) {
         for (size_t c = 0; c < S->ncells; c++)
             dual_of[c] = SIZE_MAX;
-        for (size_t k = 0; k < T->complex.ncells; k++)
-            if (T->complex.cells[k].dual < S->ncells)
-                dual_of[T->complex.cells[k].dual] = k;
+        for (size_t k = 0; k < C->ncells; k++)
+            if (C->cells[k].dual < S->ncells)
+                dual_of[C->cells[k].dual] = k;
     }
     jw_puts(f, "  \"subdivision\": {\n    \"cells\": [");
     for (size_t c = 0; c < S->ncells; c++) {
         const tp_subdiv_cell *sc = &S->cells[c];
+        size_t dual = dual_of ? dual_of[c] : c < C->ncells ? c : SIZE_MAX;
         jw_puts(f, c ? ",\n      " : "\n      ");
         jw_puts(f, "{\"points\": ");
         put_idx_vec(f, sc->pts, sc->npts);
@@ -409,14 +416,14 @@ static bool write_subdivision(jw *f, const tp_trop *T)
         if (sc->dim == H->dim && sc->nlower == 1 && sc->lower[0] < H->nlower &&
             H->lower[sc->lower[0]].w)
             put_rat_vec(f, H->lower[sc->lower[0]].w, n, T->max);
-        else if (sc->dim == H->dim && dual_of[c] != SIZE_MAX) {
+        else if (sc->dim == H->dim && dual != SIZE_MAX) {
             /* the complex took the facet normals: the dual cell's only vertex, already
              * in the output convention */
-            const tp_complex_cell *cc = &T->complex.cells[dual_of[c]];
+            const tp_complex_cell *cc = &C->cells[dual];
             put_rat_vec(f, T->complex.verts + cc->verts[0] * n, n, false);
         }
-        else if (dual_of[c] != SIZE_MAX) {
-            tp_complex_interior(&T->complex, dual_of[c], ipt);
+        else if (dual != SIZE_MAX) {
+            tp_complex_interior(C, dual, ipt);
             put_rat_vec(f, ipt, n, false);
         }
         else
