@@ -11,6 +11,7 @@
 #include <stdbool.h>
 #include <stdint.h>
 #include <gmp.h>
+#include "trope/arena.h"
 #include "trope/error.h"
 #include "trope/field.h"
 #include "trope/poly.h"
@@ -19,11 +20,16 @@ typedef struct {
     size_t n;            /* number of exponent coordinates (variables) */
     size_t count;        /* number of points */
     int64_t *exps;       /* count * n */
-    mpq_t *heights;      /* count */
+    mpq_t *heights;      /* count; read-only values with their limbs in hmem when
+                            heights_view (the readers build them so: 48 bytes a height
+                            instead of about 96): change them only through
+                            tp_points_negate_heights */
     bool *dup;           /* count: excluded duplicate exponent */
     char **residue;      /* count residue strings for initial forms, or NULL (CSV input) */
     size_t nnames;       /* column names from a CSV header (n of them), or 0 */
     char **names;
+    bool heights_view;
+    tp_arena hmem;
 } tp_points;
 
 void tp_points_init(tp_points *P);

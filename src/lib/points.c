@@ -9,9 +9,10 @@ void tp_points_init(tp_points *P) { memset(P, 0, sizeof *P); }
 
 void tp_points_clear(tp_points *P)
 {
-    if (P->heights)
+    if (P->heights && !P->heights_view)
         for (size_t k = 0; k < P->count; k++)
             mpq_clear(P->heights[k]);
+    tp_arena_free(&P->hmem);
     if (P->residue)
         for (size_t k = 0; k < P->count; k++)
             free(P->residue[k]);
@@ -74,6 +75,18 @@ tp_status tp_points_from_poly(tp_points *P, const tp_poly *f, const tp_field *F,
             return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory");
         }
     }
+    /* the heights as read-only values in one arena (half the memory) */
+    mpq_t *views = malloc((m ? m : 1) * sizeof *views);
+    if (!views || !tp_arena_qview(&P->hmem, views, (const mpq_t *)P->heights, m)) {
+        free(views);
+        tp_points_clear(P);
+        return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory");
+    }
+    for (size_t k = 0; k < m; k++)
+        mpq_clear(P->heights[k]);
+    free(P->heights);
+    P->heights = views;
+    P->heights_view = true;
     tp_points_mark_dups(P);
     return TP_OK;
 }
@@ -180,7 +193,10 @@ void tp_points_mark_dups(tp_points *P)
 void tp_points_negate_heights(tp_points *P)
 {
     for (size_t k = 0; k < P->count; k++)
-        mpq_neg(P->heights[k], P->heights[k]);
+        if (P->heights_view)
+            tp_qview_neg(P->heights[k]);
+        else
+            mpq_neg(P->heights[k], P->heights[k]);
     tp_points_mark_dups(P);
 }
 
@@ -363,7 +379,11 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
     int first_line = 0;
     size_t count = 0, cap = 0;
     int64_t *exps = NULL;
-    mpq_t *heights = NULL;
+    mpq_t *heights = NULL;   /* read-only values in hmem */
+    tp_arena hmem;
+    tp_arena_init(&hmem);
+    mpq_t h;
+    mpq_init(h);
     char **names = NULL;
     size_t nnames = 0;
     field_span *fs = NULL;
@@ -507,10 +527,8 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
             }
         }
         field_span *hf = &fs[nfields - 1];
-        mpq_init(heights[count]);
-        int rc = parse_height(text + hf->start, hf->len, heights[count]);
+        int rc = parse_height(text + hf->start, hf->len, h);
         if (rc) {
-            mpq_clear(heights[count]);
             char shown[200];
             show_field(text + hf->start, hf->len, shown, sizeof shown);
             if (rc == 3)
@@ -520,6 +538,10 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
                                   "expected a height (integer, fraction p/q or decimal), "
                                   "found %s%s%s", hf->len ? "'" : "an empty field", shown,
                                   hf->len ? "'" : "");
+            goto fail;
+        }
+        if (!tp_arena_qview(&hmem, &heights[count], (const mpq_t *)&h, 1)) {
+            st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory");
             goto fail;
         }
         count++;
@@ -534,6 +556,9 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
     P->count = count;
     P->exps = exps;
     P->heights = heights;
+    P->heights_view = true;
+    P->hmem = hmem;
+    tp_arena_init(&hmem);
     P->dup = calloc(count, sizeof *P->dup);
     if (!P->dup) {
         tp_points_clear(P);
@@ -550,11 +575,12 @@ tp_status tp_points_read_csv(tp_points *P, const char *text, size_t len, tp_erro
         P->nnames = nnames - 1;
     }
     free(fs);
+    mpq_clear(h);
     tp_points_mark_dups(P);
     return TP_OK;
 fail:
-    for (size_t k = 0; k < count; k++)
-        mpq_clear(heights[k]);
+    tp_arena_free(&hmem);
+    mpq_clear(h);
     free(heights);
     free(exps);
     if (names)
