@@ -86,6 +86,8 @@ def run_trope(csv, out, engine, n, timeout=None):
     args = ["/usr/bin/time", "-f", "%M %e %U %S", "-o", tfile,
             TROPE, "tropicalize", "--points", csv, "--format", "json", "-o", out,
             "--timings", "--engine", engine]
+    if engine == "cdd":   # the timeout below bounds it, not the work limit
+        args += ["--max-cdd-points", "100000000"]
     p = subprocess.Popen(args, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE,
                          start_new_session=True)
     try:
