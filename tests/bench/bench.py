@@ -214,14 +214,14 @@ def main():
             print(f"{name:<14}{d:>7}{len(A):>9} | {hull:8.3f}{wall:8.3f}{cpu:8.3f}"
                   f"{rss / len(A):8.2f} | {cdd_t:>8} | {qt:8.3f}{ratio:7.2f}{runq:7.2f} | "
                   f"{facets}/{cdd_f}/{qf}", flush=True)
-            growth.setdefault(name, []).append((len(A), hull, wall, qt))
+            growth.setdefault(name, []).append((len(A), hull, cpu, qt))
     print()
     print("growth exponents (slope of log time against log points):")
     for name, g in growth.items():
         if len(g) < 2:
             continue
         xs = [p for p, *_ in g]
-        print(f"  {name:<14} trope hull {slope(xs, [x[1] for x in g]):5.2f}   whole run "
+        print(f"  {name:<14} trope hull {slope(xs, [x[1] for x in g]):5.2f}   whole run (cpu) "
               f"{slope(xs, [x[2] for x in g]):5.2f}   Qhull {slope(xs, [x[3] for x in g]):5.2f}")
     print()
     print("hull: CPU time of the hull phase (--timings); run: wall time of the whole command,\n"
