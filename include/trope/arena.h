@@ -28,6 +28,9 @@ void tp_arena_free(tp_arena *A);
  * not for long double), or NULL on no memory (also for a size
  * that overflows). A request of 0 bytes returns a valid pointer. */
 void *tp_arena_alloc(tp_arena *A, size_t bytes);
+/* The same aligned to 4 bytes only, for uint32_t lists: a list of 1, 3, 5... entries
+ * then takes no padding. */
+void *tp_arena_alloc4(tp_arena *A, size_t bytes);
 /* Move every block of `from` into `to` (from is left empty). */
 void tp_arena_take(tp_arena *to, tp_arena *from);
 

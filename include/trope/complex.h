@@ -23,10 +23,10 @@
 typedef struct {
     int dim;
     uint32_t nverts;     /* counts and dual are 32-bit (the subdivision refuses more
-                            than 2^32 - 1 faces or facets): a cell takes 72 bytes */
+                            than 2^32 - 1 faces or facets): a cell takes 48 bytes */
     uint32_t nrays;
     uint32_t dual;       /* index into the subdivision's cells */
-    size_t *verts;       /* indices into vertices, ascending (in C->idx_pool), then
+    uint32_t *verts;     /* indices into vertices, ascending (in C->idx_pool), then
                             nrays indices into rays, ascending: tp_complex_cell_rays */
     mpz_t weight;        /* top cells: lattice length of the dual edge; else 0 (the
                             multiplicity of a vertex cell: tp_complex_mult) */
@@ -35,7 +35,7 @@ typedef struct {
 } tp_complex_cell;
 
 /* The rays of cell c: nrays indices into the complex's rays, ascending. */
-static inline size_t *tp_complex_cell_rays(const tp_complex_cell *c)
+static inline uint32_t *tp_complex_cell_rays(const tp_complex_cell *c)
 {
     return c->verts + c->nverts;
 }
@@ -59,7 +59,7 @@ typedef struct {
     mpz_t *rays;         /* nrays * n */
     size_t ncells;
     tp_complex_cell *cells;
-    size_t *idx_pool;    /* storage behind every cell's verts and rays lists */
+    uint32_t *idx_pool;  /* storage behind every cell's verts and rays lists */
 
     /* invariants */
     size_t *f_vector;    /* n + 1 entries: f_vector[k] = number of cells of dimension k */

@@ -21,6 +21,7 @@
 #define TROPE_HULL_H
 
 #include <stdbool.h>
+#include <stdint.h>
 #include <gmp.h>
 #include "trope/arena.h"
 #include "trope/error.h"
@@ -28,7 +29,8 @@
 
 typedef struct {
     size_t npts;
-    size_t *pts;   /* points on the facet, ascending */
+    uint32_t *pts; /* points on the facet, ascending (32-bit: tp_hull_lower refuses
+                      point indices of 2^32 or more, TP_ELIMIT) */
     mpq_t *w;      /* n coordinates: h_i + <a_i, w> = c on pts, > c at every other point;
                       reduced modulo L. Read-only values in w_limbs; NULL once the
                       complex has taken them (tp_complex_build_move) */
@@ -36,7 +38,7 @@ typedef struct {
 
 typedef struct {
     size_t npts;
-    size_t *pts;   /* points on this facet of the Newton polytope, ascending */
+    uint32_t *pts; /* points on this facet of the Newton polytope, ascending */
     mpz_t *u;      /* n coordinates: primitive inner normal, reduced modulo L then made
                       primitive: <a_i, u> = min on pts, larger at points off the facet */
 } tp_hull_side;
@@ -65,7 +67,8 @@ void tp_hull_clear(tp_hull *H);
 
 /* tp_hull_lower: fill H from P (H is cleared first).
  *   returns TP_OK; TP_EHULL with a message if the engine fails; TP_EDOMAIN if P has no
- *   point; TP_ENOMEM.
+ *   point; TP_ELIMIT for a facet on a point of index 2^32 or more (point lists are
+ *   32-bit); TP_ENOMEM.
  *   notes: engine AUTO picks the fastest exact engine available; CDD uses cddlib's GMP
  *   build (serialised behind one process-wide lock, so this function is thread-safe). */
 TP_MUST_CHECK tp_status tp_hull_lower(tp_hull *H, const tp_points *P, tp_engine engine,

@@ -16,14 +16,14 @@ typedef struct {
     uint32_t npts;       /* counts are 32-bit: tp_subdiv_build refuses point sets and */
     uint32_t nlower;     /* hulls of 2^32 or more points or facets (TP_ELIMIT) */
     uint32_t nsides;
-    size_t *pts;         /* points lying on the face, ascending */
-    size_t *lower;       /* indices into hull.lower of facets containing the face, then
+    uint32_t *pts;       /* points lying on the face, ascending */
+    uint32_t *lower;     /* indices into hull.lower of facets containing the face, then
                             (nsides more) indices into hull.sides of the Newton facets
                             containing it: see tp_subdiv_sides */
 } tp_subdiv_cell;
 
 /* The Newton polytope facets containing c: nsides indices into hull.sides, ascending. */
-static inline size_t *tp_subdiv_sides(const tp_subdiv_cell *c)
+static inline uint32_t *tp_subdiv_sides(const tp_subdiv_cell *c)
 {
     return c->lower + c->nlower;
 }

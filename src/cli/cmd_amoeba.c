@@ -146,7 +146,8 @@ static tp_status put_curve_decimal(FILE *f, const tp_trop *T, tp_error *err)
         char b[160];
         int len = 0;
         for (size_t t = 0; t < c->nverts && len < 100; t++)
-            len += snprintf(b + len, sizeof b - (size_t)len, "%sv%zu", t ? " - " : "", c->verts[t]);
+            len += snprintf(b + len, sizeof b - (size_t)len, "%sv%zu", t ? " - " : "",
+                            (size_t)c->verts[t]);
         for (size_t t = 0; t < c->nrays && len < 100; t++) {
             const mpz_t *r = (const mpz_t *)&C->rays[tp_complex_cell_rays(c)[t] * n];
             len += snprintf(b + len, sizeof b - (size_t)len, " + ray (%ld, %ld)",

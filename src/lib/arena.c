@@ -79,13 +79,21 @@ void tp_arena_free(tp_arena *A)
     tp_arena_init(A);
 }
 
-void *tp_arena_alloc(tp_arena *A, size_t bytes)
+/* A piece of `bytes` bytes at an offset of its block that is a multiple of `align`
+ * (4 or 8; block data is 16-byte aligned). */
+static void *arena_alloc(tp_arena *A, size_t bytes, size_t align)
 {
     if (bytes > SIZE_MAX / 2)
         return NULL;
-    size_t need = (bytes + 7) & ~(size_t)7;
+    size_t need = (bytes + align - 1) & ~(align - 1);
     tp_arena_block *b = A->head;
-    if (b && b->size - b->used < need && need >= A->next / 4) {
+    size_t at = 0; /* where the piece would start in b */
+    if (b) {
+        at = (b->used + align - 1) & ~(align - 1);
+        if (at > b->size)
+            at = b->size; /* a block of 4 (mod 8) bytes, full */
+    }
+    if (b && b->size - at < need && need >= A->next / 4) {
         /* a large piece gets a block of its own, behind the one being filled */
         tp_arena_block *g = block_new(need + sizeof *g);
         if (!g)
@@ -95,7 +103,7 @@ void *tp_arena_alloc(tp_arena *A, size_t bytes)
         b->next = g;
         return g->data;
     }
-    if (!b || b->size - b->used < need) {
+    if (!b || b->size - at < need) {
         if (A->next < ARENA_MIN)
             A->next = ARENA_MIN;
         size_t size = A->next;
@@ -106,12 +114,23 @@ void *tp_arena_alloc(tp_arena *A, size_t bytes)
             return NULL;
         g->next = b;
         A->head = b = g;
+        at = 0;
         if (A->next < ARENA_MAX)
             A->next *= 2;
     }
-    void *p = b->data + b->used;
-    b->used += need;
+    void *p = b->data + at;
+    b->used = at + need;
     return p;
+}
+
+void *tp_arena_alloc(tp_arena *A, size_t bytes)
+{
+    return arena_alloc(A, bytes, 8);
+}
+
+void *tp_arena_alloc4(tp_arena *A, size_t bytes)
+{
+    return arena_alloc(A, bytes, 4);
 }
 
 void tp_arena_take(tp_arena *to, tp_arena *from)

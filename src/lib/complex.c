@@ -307,7 +307,7 @@ static int64_t gcd64(int64_t a, int64_t b)
 }
 
 /* edge_extremes without GMP: false when some intermediate would overflow int64. */
-static bool edge_extremes64(const tp_points *P, const size_t *pts, size_t npts,
+static bool edge_extremes64(const tp_points *P, const uint32_t *pts, size_t npts,
                             size_t *lo, size_t *hi, mpz_t len)
 {
     size_t n = P->n;
@@ -349,7 +349,7 @@ static bool edge_extremes64(const tp_points *P, const size_t *pts, size_t npts,
     return true;
 }
 
-static void edge_extremes(const tp_points *P, const size_t *pts, size_t npts, size_t *lo,
+static void edge_extremes(const tp_points *P, const uint32_t *pts, size_t npts, size_t *lo,
                           size_t *hi, mpz_t len)
 {
     if (edge_extremes64(P, pts, npts, lo, hi, len))
@@ -413,7 +413,7 @@ static void sb_put(sbuf *b, const char *t)
 
 /* residue strings: "3", "-7/4", "2-3i"; a complex or fractional residue is put in
  * parentheses when multiplied. */
-static char *initial_form(const tp_points *P, const size_t *pts, size_t npts,
+static char *initial_form(const tp_points *P, const uint32_t *pts, size_t npts,
                           char *const *vars)
 {
     if (!P->residue)
@@ -482,28 +482,29 @@ static int cmp_row_r(const void *x, const void *y, void *ctx)
     return 0;
 }
 
-static int cmp_size(const void *a, const void *b)
+static int cmp_u32(const void *a, const void *b)
 {
-    size_t x = *(const size_t *)a, y = *(const size_t *)b;
+    uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
     return (x > y) - (x < y);
 }
 
 /* Ascending sort: insertion sort for the short lists cells have, qsort beyond. */
-static void sort_small(size_t *v, size_t m)
+static void sort_small(uint32_t *v, size_t m)
 {
     if (m > 16) {
-        qsort(v, m, sizeof *v, cmp_size);
+        qsort(v, m, sizeof *v, cmp_u32);
         return;
     }
     for (size_t i = 1; i < m; i++) {
-        size_t x = v[i], k = i;
+        uint32_t x = v[i];
+        size_t k = i;
         for (; k > 0 && v[k - 1] > x; k--)
             v[k] = v[k - 1];
         v[k] = x;
     }
 }
 
-static int cmp_list(const size_t *a, size_t na, const size_t *b, size_t nb)
+static int cmp_list(const uint32_t *a, size_t na, const uint32_t *b, size_t nb)
 {
     size_t m = na < nb ? na : nb;
     for (size_t i = 0; i < m; i++)
@@ -993,7 +994,7 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
         st = nomem(err);
         goto done;
     }
-    size_t *ip = C->idx_pool;
+    uint32_t *ip = C->idx_pool;
     mpz_init(tw);
     for (size_t s = 0; s < S->ncells; s++) {
         const tp_subdiv_cell *sig = &S->cells[s];
@@ -1061,9 +1062,9 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
             for (size_t j = 0; j < n; j++)
                 mpz_set(C->rays[rmap[r] * n + j], H->sides[r].u[j]);
     for (size_t i = 0; i < C->ncells; i++) {
-        size_t *cr = tp_complex_cell_rays(&C->cells[i]);
+        uint32_t *cr = tp_complex_cell_rays(&C->cells[i]);
         for (size_t r = 0; r < C->cells[i].nrays; r++)
-            cr[r] = rmap[cr[r]];
+            cr[r] = (uint32_t)rmap[cr[r]]; /* < nsides < 2^32 (tp_subdiv_build) */
     }
 
     /* Vertex multiplicities of curves and of n = 1 (before negation; they are
@@ -1274,10 +1275,10 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
         ord = NULL;
         for (size_t i = 0; i < C->ncells; i++) {
             tp_complex_cell *c = &C->cells[i];
-            size_t *lst = pass == 0 ? c->verts : tp_complex_cell_rays(c);
+            uint32_t *lst = pass == 0 ? c->verts : tp_complex_cell_rays(c);
             size_t cnt = pass == 0 ? c->nverts : c->nrays;
             for (size_t t = 0; t < cnt; t++)
-                lst[t] = vmap[lst[t]];
+                lst[t] = (uint32_t)vmap[lst[t]]; /* < m < 2^32 */
             sort_small(lst, cnt);
         }
         if (pass == 0 && C->vmult) {

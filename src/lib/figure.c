@@ -494,17 +494,17 @@ static tp_status curve_data_make(curve_data *D, const tp_trop *T, tp_error *err)
         e.cell = c;
         if (cl->nverts == 2 && cl->nrays == 0) {
             e.type = 0;
-            memcpy(e.p, D->v + 2 * cl->verts[0], sizeof e.p);
-            memcpy(e.q, D->v + 2 * cl->verts[1], sizeof e.q);
+            memcpy(e.p, D->v + 2 * (size_t)cl->verts[0], sizeof e.p);
+            memcpy(e.q, D->v + 2 * (size_t)cl->verts[1], sizeof e.q);
         } else if (cl->nverts == 1 && cl->nrays == 1) {
             e.type = 1;
-            memcpy(e.p, D->v + 2 * cl->verts[0], sizeof e.p);
+            memcpy(e.p, D->v + 2 * (size_t)cl->verts[0], sizeof e.p);
             for (int k = 0; k < 2; k++)
                 e.d[k] = mpz_get_d(
                     C->rays[tp_complex_cell_rays(cl)[0] * n + (size_t)D->axes[k]]);
         } else if (cl->nverts == 1 && cl->nrays == 0 && n == 2 && C->nlin == 1) {
             e.type = 2;
-            memcpy(e.p, D->v + 2 * cl->verts[0], sizeof e.p);
+            memcpy(e.p, D->v + 2 * (size_t)cl->verts[0], sizeof e.p);
             for (int k = 0; k < 2; k++)
                 e.d[k] = mpz_get_d(C->lin[k]);
         } else {
@@ -1177,7 +1177,7 @@ static tp_status build_line(tp_figure *F, const tp_trop *T, const tp_figure_opti
         const tp_complex_cell *cl = &C->cells[c];
         if (cl->dim != 0 || cl->nverts != 1)
             continue;
-        double X = VX(vw, v[2 * cl->verts[0]]);
+        double X = VX(vw, v[2 * (size_t)cl->verts[0]]);
         if (X < rect[0] || X > rect[2])
             continue;
         TRY(tp_figure_circle(F, "root", (long)c, X, axis_y, 2.0 * S.u, 0.55 * S.u, C_INK,
@@ -1395,12 +1395,12 @@ tp_status tp_surface_mesh_build(tp_surface_mesh *M, const tp_trop *T, const doub
         /* all generating points, in 3D (stored in tmp) */
         size_t g = 0;
         for (size_t a = 0; a < cl->nverts; a++) {
-            const double *p = V + 3 * cl->verts[a];
+            const double *p = V + 3 * (size_t)cl->verts[a];
             memcpy(tmp + 3 * g++, p, 3 * sizeof *p);
             for (size_t r = 0; r < cl->nrays; r++) {
                 double d[3], len = 0;
                 for (int k = 0; k < 3; k++) {
-                    d[k] = mpz_get_d(C->rays[tp_complex_cell_rays(cl)[r] * 3 + (size_t)k]);
+                    d[k] = mpz_get_d(C->rays[(size_t)tp_complex_cell_rays(cl)[r] * 3 + (size_t)k]);
                     len += d[k] * d[k];
                 }
                 len = sqrt(len);

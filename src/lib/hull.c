@@ -47,16 +47,14 @@ void tp_hull_clear(tp_hull *H)
     tp_hull_init(H);
 }
 
-static size_t *copy_sorted(const size_t *pts, size_t npts);
-
-static int cmp_size(const void *a, const void *b)
+static int cmp_u32(const void *a, const void *b)
 {
-    size_t x = *(const size_t *)a, y = *(const size_t *)b;
+    uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
     return (x > y) - (x < y);
 }
 
 /* Ascending sort: insertion sort for short lists, qsort beyond. */
-static void sort_small(size_t *v, size_t m)
+static void sort_small(uint32_t *v, size_t m)
 {
     size_t k = 1;
     while (k < m && v[k - 1] < v[k])
@@ -64,26 +62,35 @@ static void sort_small(size_t *v, size_t m)
     if (k >= m)
         return; /* engines often hand lists over sorted */
     if (m > 16) {
-        qsort(v, m, sizeof *v, cmp_size);
+        qsort(v, m, sizeof *v, cmp_u32);
         return;
     }
     for (size_t i = 1; i < m; i++) {
-        size_t x = v[i], k = i;
+        uint32_t x = v[i];
+        size_t k = i;
         for (; k > 0 && v[k - 1] > x; k--)
             v[k] = v[k - 1];
         v[k] = x;
     }
 }
 
-static size_t *copy_sorted(const size_t *pts, size_t npts)
+/* Copy the engine's size_t list into a 32-bit one, sorted; false if an index does not
+ * fit (then dst is partly written). */
+static bool narrow_sorted(uint32_t *dst, const size_t *pts, size_t npts)
 {
-    size_t *c = malloc((npts ? npts : 1) * sizeof *c);
-    if (!c)
-        return NULL;
-    if (npts)
-        memcpy(c, pts, npts * sizeof *c);
-    sort_small(c, npts);
-    return c;
+    for (size_t i = 0; i < npts; i++) {
+        if ((uint64_t)pts[i] > UINT32_MAX)
+            return false;
+        dst[i] = (uint32_t)pts[i];
+    }
+    sort_small(dst, npts);
+    return true;
+}
+
+static tp_status too_many_points(tp_error *err)
+{
+    return tp_error_set(err, TP_ELIMIT, 0, 0,
+                        "a point index of 2^32 or more: point lists are 32-bit");
 }
 
 /* Arrays of facets grow geometrically: capacity 64, then the next power of two (the
@@ -113,13 +120,12 @@ tp_status tp_hull_push_lower(tp_hull *H, const size_t *pts, size_t npts, mpq_t *
     }
     tp_hull_facet *f = &H->lower[H->nlower];
     memset(f, 0, sizeof *f);
-    f->pts = tp_arena_alloc(&H->pts_mem, npts * sizeof *f->pts);
+    f->pts = tp_arena_alloc4(&H->pts_mem, npts * sizeof *f->pts);
     f->w = tp_arena_alloc(&H->w_mem, H->n * sizeof *f->w);
     if (!f->pts || !f->w)
         return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (lower hull)");
-    if (npts)
-        memcpy(f->pts, pts, npts * sizeof *f->pts);
-    sort_small(f->pts, npts);
+    if (!narrow_sorted(f->pts, pts, npts))
+        return too_many_points(err); /* H->nlower not advanced: f is not counted */
     f->npts = npts;
     bool ok;
     if (H->nlin > 0) {
@@ -157,12 +163,17 @@ tp_status tp_hull_push_side(tp_hull *H, const size_t *pts, size_t npts, mpz_t *u
     }
     tp_hull_side *s = &H->sides[H->nsides];
     memset(s, 0, sizeof *s);
-    s->pts = copy_sorted(pts, npts);
+    s->pts = malloc((npts ? npts : 1) * sizeof *s->pts);
     s->u = malloc((H->n ? H->n : 1) * sizeof *s->u);
     if (!s->pts || !s->u) {
         free(s->pts);
         free(s->u);
         return tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (Newton polytope)");
+    }
+    if (!narrow_sorted(s->pts, pts, npts)) {
+        free(s->pts);
+        free(s->u);
+        return too_many_points(err);
     }
     s->npts = npts;
     for (size_t j = 0; j < H->n; j++) {
@@ -427,7 +438,7 @@ void tp_hull_reduce_z(const tp_hull *H, mpz_t *v)
 
 /* ---- canonical form ------------------------------------------------------------- */
 
-static int cmp_ptlist(const size_t *a, size_t na, const size_t *b, size_t nb)
+static int cmp_ptlist(const uint32_t *a, size_t na, const uint32_t *b, size_t nb)
 {
     size_t m = na < nb ? na : nb;
     for (size_t i = 0; i < m; i++)

@@ -27,8 +27,9 @@ bool tp_hull_fast_accepts(const tp_hull *H, const tp_points *P);
  * pushed), trim the facet array: nothing is pushed after it. */
 tp_status tp_hull_finish(tp_hull *H, tp_error *err);
 
-/* Append a lower facet / side (the arrays are copied; w, u have H->n entries). A lower
- * facet's w is reduced modulo L (H->lin must be set) and stored read-only. */
+/* Append a lower facet / side (the arrays are copied into 32-bit lists, sorted; w, u
+ * have H->n entries). A lower facet's w is reduced modulo L (H->lin must be set) and
+ * stored read-only. TP_ELIMIT for a point index above UINT32_MAX. */
 tp_status tp_hull_push_lower(tp_hull *H, const size_t *pts, size_t npts, mpq_t *w,
                              tp_error *err);
 tp_status tp_hull_push_side(tp_hull *H, const size_t *pts, size_t npts, mpz_t *u,

@@ -36,7 +36,7 @@ void tp_subdiv_clear(tp_subdiv *S)
 
 /* ---- affine rank of a set of exponents (exact, fraction-free) --------------------- */
 
-static int affine_rank(const tp_points *P, const size_t *pts, size_t npts, int upto)
+static int affine_rank(const tp_points *P, const uint32_t *pts, size_t npts, int upto)
 {
     size_t n = P->n;
     if (npts <= 1)
@@ -57,9 +57,9 @@ static int affine_rank(const tp_points *P, const size_t *pts, size_t npts, int u
     mpz_t t;
     mpz_init(t);
     int rank = 0;
-    const int64_t *a0 = &P->exps[pts[0] * n];
+    const int64_t *a0 = &P->exps[(size_t)pts[0] * n];
     for (size_t i = 1; i < npts && rank < upto; i++) {
-        const int64_t *a = &P->exps[pts[i] * n];
+        const int64_t *a = &P->exps[(size_t)pts[i] * n];
         for (size_t j = 0; j < n; j++) {
             mpz_set_si(v[j], (long)a[j]);
             mpz_set_si(t, (long)a0[j]);
@@ -113,7 +113,7 @@ typedef struct {
     uint64_t *slot;
 } cellset;
 
-static uint64_t hash_pts(const size_t *pts, size_t npts)
+static uint64_t hash_pts(const uint32_t *pts, size_t npts)
 {
     uint64_t h = 1469598103934665603u;
     for (size_t i = 0; i < npts; i++) {
@@ -131,7 +131,7 @@ typedef struct {
     cellset set;
 } builder;
 
-static inline const size_t *cell_pts(const builder *b, size_t c)
+static inline const uint32_t *cell_pts(const builder *b, size_t c)
 {
     return b->cells[c].pts;
 }
@@ -142,7 +142,7 @@ static bool set_full(size_t cells, size_t cap)
     return cells / 3 * 4 + (cells % 3) * 4 / 3 >= cap;
 }
 
-static bool same_pts(const builder *b, size_t c, const size_t *pts, size_t npts)
+static bool same_pts(const builder *b, size_t c, const uint32_t *pts, size_t npts)
 {
     return b->cells[c].npts == npts &&
            memcmp(cell_pts(b, c), pts, npts * sizeof *pts) == 0;
@@ -172,7 +172,7 @@ static bool set_grow(builder *b)
 }
 
 /* Find the cell with these points (hash h); returns its index or SIZE_MAX. */
-static size_t set_find(const builder *b, const size_t *pts, size_t npts, uint64_t h)
+static size_t set_find(const builder *b, const uint32_t *pts, size_t npts, uint64_t h)
 {
     if (!b->set.cap)
         return SIZE_MAX;
@@ -190,8 +190,8 @@ static size_t set_find(const builder *b, const size_t *pts, size_t npts, uint64_
 /* Append a new cell (hash h); its point list is `shared` when not NULL (a list that
  * outlives the subdivision's cells, equal to pts), else a copy of pts. Returns its
  * index or SIZE_MAX on no memory. */
-static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts, uint64_t h,
-                       size_t *shared)
+static size_t add_cell(builder *b, int dim, const uint32_t *pts, size_t npts, uint64_t h,
+                       uint32_t *shared)
 {
     if (set_full(b->ncells + 1, b->set.cap) && !set_grow(b))
         return SIZE_MAX;
@@ -203,9 +203,9 @@ static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts, uint
         b->cells = g;
         b->cap = ncap;
     }
-    size_t *own = shared;
+    uint32_t *own = shared;
     if (!own) {
-        own = tp_arena_alloc(b->mem, npts * sizeof *own);
+        own = tp_arena_alloc4(b->mem, npts * sizeof *own);
         if (!own)
             return SIZE_MAX;
         memcpy(own, pts, npts * sizeof *pts);
@@ -213,7 +213,7 @@ static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts, uint
     tp_subdiv_cell *c = &b->cells[b->ncells];
     memset(c, 0, sizeof *c);
     c->dim = dim;
-    c->npts = npts;
+    c->npts = (uint32_t)npts; /* < 2^32: tp_subdiv_build checks the point count */
     c->pts = own;
     size_t k = (size_t)h & (b->set.cap - 1);
     while (b->set.slot[k])
@@ -226,7 +226,8 @@ static size_t add_cell(builder *b, int dim, const size_t *pts, size_t npts, uint
 
 typedef struct {
     size_t *off;     /* npoints + 1 */
-    size_t *ids;     /* facet ids: lower facets 0..nlower-1, sides nlower.. */
+    uint32_t *ids;   /* facet ids: lower facets 0..nlower-1, sides nlower.. (fewer
+                        than 2^32: tp_subdiv_build checks) */
 } pindex;
 
 static bool pindex_build(pindex *ix, const tp_hull *H)
@@ -257,29 +258,30 @@ static bool pindex_build(pindex *ix, const tp_hull *H)
     memcpy(fill, ix->off, (np + 1) * sizeof *fill);
     for (size_t f = 0; f < H->nlower; f++)
         for (size_t t = 0; t < H->lower[f].npts; t++)
-            ix->ids[fill[H->lower[f].pts[t]]++] = f;
+            ix->ids[fill[H->lower[f].pts[t]]++] = (uint32_t)f;
     for (size_t f = 0; f < H->nsides; f++)
         for (size_t t = 0; t < H->sides[f].npts; t++)
-            ix->ids[fill[H->sides[f].pts[t]]++] = H->nlower + f;
+            ix->ids[fill[H->sides[f].pts[t]]++] = (uint32_t)(H->nlower + f);
     free(fill);
     return true;
 }
 
-static int cmp_size(const void *a, const void *b)
+static int cmp_u32(const void *a, const void *b)
 {
-    size_t x = *(const size_t *)a, y = *(const size_t *)b;
+    uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
     return (x > y) - (x < y);
 }
 
 /* Ascending sort: insertion sort for short lists, qsort beyond. */
-static void sort_small(size_t *v, size_t m)
+static void sort_small(uint32_t *v, size_t m)
 {
     if (m > 16) {
-        qsort(v, m, sizeof *v, cmp_size);
+        qsort(v, m, sizeof *v, cmp_u32);
         return;
     }
     for (size_t i = 1; i < m; i++) {
-        size_t x = v[i], k = i;
+        uint32_t x = v[i];
+        size_t k = i;
         for (; k > 0 && v[k - 1] > x; k--)
             v[k] = v[k - 1];
         v[k] = x;
@@ -290,15 +292,15 @@ static void sort_small(size_t *v, size_t m)
  * it, one piece of the arena (sides right after lower). `count` is a zeroed scratch
  * array over facet ids, `touched` a scratch list; both left clean. */
 static bool set_containing(builder *b, size_t ci, const tp_hull *H, const pindex *ix,
-                           size_t *count, size_t *touched)
+                           uint32_t *count, uint32_t *touched)
 {
     tp_subdiv_cell *c = &b->cells[ci];
-    const size_t *pts = cell_pts(b, ci);
+    const uint32_t *pts = cell_pts(b, ci);
     size_t nt = 0;
     for (size_t t = 0; t < c->npts; t++) {
-        size_t p = pts[t];
+        uint32_t p = pts[t];
         for (size_t k = ix->off[p]; k < ix->off[p + 1]; k++) {
-            size_t f = ix->ids[k];
+            uint32_t f = ix->ids[k];
             if (count[f]++ == 0)
                 touched[nt++] = f;
         }
@@ -311,22 +313,22 @@ static bool set_containing(builder *b, size_t ci, const tp_hull *H, const pindex
             else
                 ns++;
         }
-    size_t *lower = tp_arena_alloc(b->mem, (nl + ns) * sizeof *lower);
+    uint32_t *lower = tp_arena_alloc4(b->mem, (nl + ns) * sizeof *lower);
     if (!lower) {
         for (size_t k = 0; k < nt; k++)
             count[touched[k]] = 0;
         return false;
     }
-    size_t *sides = lower + nl;
+    uint32_t *sides = lower + nl;
     c->lower = lower; /* sides follow: tp_subdiv_sides */
     c->nlower = c->nsides = 0;
     for (size_t k = 0; k < nt; k++) {
-        size_t f = touched[k];
+        uint32_t f = touched[k];
         if (count[f] == c->npts) {
             if (f < H->nlower)
                 lower[c->nlower++] = f;
             else
-                sides[c->nsides++] = f - H->nlower;
+                sides[c->nsides++] = (uint32_t)(f - H->nlower);
         }
         count[f] = 0;
     }
@@ -335,7 +337,7 @@ static bool set_containing(builder *b, size_t ci, const tp_hull *H, const pindex
     return true;
 }
 
-static const size_t *facet_pts(const tp_hull *H, size_t f, size_t *npts)
+static const uint32_t *facet_pts(const tp_hull *H, size_t f, size_t *npts)
 {
     if (f < H->nlower) {
         *npts = H->lower[f].npts;
@@ -407,10 +409,12 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
     builder b = {0};
     b.mem = &S->pool;
     pindex ix = {0};
-    size_t *count = calloc(nfac + 1, sizeof *count);
-    size_t *touched = malloc((nfac + 1) * sizeof *touched);
-    size_t *inter = malloc((H->npoints + 1) * sizeof *inter);
-    size_t *cand = malloc((nfac + 1) * sizeof *cand);
+    /* 32-bit scratch: facet ids, point indices and counts of a cell's points are all
+     * below 2^32 (checked above) */
+    uint32_t *count = calloc(nfac + 1, sizeof *count);
+    uint32_t *touched = malloc((nfac + 1) * sizeof *touched);
+    uint32_t *inter = malloc((H->npoints + 1) * sizeof *inter);
+    uint32_t *cand = malloc((nfac + 1) * sizeof *cand);
     if (!count || !touched || !inter || !cand || !pindex_build(&ix, H)) {
         st = tp_error_set(err, TP_ENOMEM, 0, 0, "out of memory (subdivision)");
         goto done;
@@ -452,23 +456,23 @@ tp_status tp_subdiv_build_limited(tp_subdiv *S, const tp_points *P, tp_engine en
             size_t nt = 0;
             size_t gn = b.cells[g].npts;
             for (size_t t = 0; t < gn; t++) {
-                size_t p = cell_pts(&b, g)[t];
+                uint32_t p = cell_pts(&b, g)[t];
                 for (size_t q = ix.off[p]; q < ix.off[p + 1]; q++) {
-                    size_t f = ix.ids[q];
+                    uint32_t f = ix.ids[q];
                     if (count[f]++ == 0)
                         cand[nt++] = f;
                 }
             }
             for (size_t q = 0; q < nt; q++) {
-                size_t f = cand[q];
+                uint32_t f = cand[q];
                 size_t hits = count[f];
                 if (hits == gn || hits < (size_t)k)
                     continue; /* contains G, or too few points for a (k-1)-face */
                 /* G ∩ X, in G's (ascending) point order. */
                 size_t fn;
-                const size_t *fp = facet_pts(H, f, &fn);
+                const uint32_t *fp = facet_pts(H, f, &fn);
                 size_t ni = 0, a = 0, c2 = 0, first = 0;
-                size_t *gp = b.cells[g].pts; /* refetched: add_cell may move b.cells */
+                uint32_t *gp = b.cells[g].pts; /* refetched: add_cell may move b.cells */
                 while (a < gn && c2 < fn) {
                     if (gp[a] == fp[c2]) {
                         if (ni == 0)
@@ -607,7 +611,7 @@ tp_status tp_subdiv_check(const tp_subdiv *S, const tp_points *P, tp_error *err)
                 if (a == F->npts || F->pts[a] != C->pts[t])
                     return tp_error_set(err, TP_EINTERNAL, 0, 0,
                                         "subdivision cell %zu is not inside lower facet %zu",
-                                        c, C->lower[l]);
+                                        c, (size_t)C->lower[l]);
             }
         }
         if (c > 0 && cmp_cell(&S->cells[c - 1], C) >= 0)

@@ -267,7 +267,19 @@ static void put_i64_vec(jw *f, const int64_t *v, size_t n)
     jw_putc(f, ']');
 }
 
-static void put_idx_vec(jw *f, const size_t *v, size_t n)
+static void put_idx_vec(jw *f, const uint32_t *v, size_t n)
+{
+    jw_putc(f, '[');
+    for (size_t k = 0; k < n; k++) {
+        if (k)
+            jw_write(f, ", ", 2);
+        jw_u64(f, (uint64_t)v[k]);
+    }
+    jw_putc(f, ']');
+}
+
+/* the unused points (a size_t list) */
+static void put_size_vec(jw *f, const size_t *v, size_t n)
 {
     jw_putc(f, '[');
     for (size_t k = 0; k < n; k++) {
@@ -380,13 +392,20 @@ static bool write_subdivision(jw *f, const tp_trop *T)
     const tp_hull *H = &S->hull;
     size_t n = T->points.n;
     /* subdivision cell -> complex cell dual to it. The complex is built with cell k
-     * dual to subdivision cell k (complex.c): then no table is needed (it would be
-     * 8 bytes a cell at the peak of the run). */
+     * dual to subdivision cell k (complex.c): then no table is needed. Otherwise (the
+     * complex sorts its cells) the table is 32-bit (complex cells are fewer than 2^32,
+     * complex.h) and covers only the subdivision cells that have a dual (they come
+     * first: cells are sorted by dimension, descending), since it is allocated at the
+     * peak of the run. */
     const tp_complex *C = &T->complex;
     bool same = true;
-    for (size_t k = 0; k < C->ncells && same; k++)
-        same = C->cells[k].dual == k;
-    size_t *dual_of = same ? NULL : malloc((S->ncells ? S->ncells : 1) * sizeof *dual_of);
+    size_t ndual = 0; /* 1 + the largest dual index */
+    for (size_t k = 0; k < C->ncells; k++) {
+        same = same && C->cells[k].dual == k;
+        if (C->cells[k].dual < S->ncells && C->cells[k].dual >= ndual)
+            ndual = (size_t)C->cells[k].dual + 1;
+    }
+    uint32_t *dual_of = same ? NULL : malloc((ndual ? ndual : 1) * sizeof *dual_of);
     mpq_t *ipt = qvec_new(n);
     if ((!same && !dual_of) || !ipt) {
         free(dual_of);
@@ -394,16 +413,17 @@ static bool write_subdivision(jw *f, const tp_trop *T)
         return false;
     }
     if (dual_of) {
-        for (size_t c = 0; c < S->ncells; c++)
-            dual_of[c] = SIZE_MAX;
+        for (size_t c = 0; c < ndual; c++)
+            dual_of[c] = UINT32_MAX;
         for (size_t k = 0; k < C->ncells; k++)
             if (C->cells[k].dual < S->ncells)
-                dual_of[C->cells[k].dual] = k;
+                dual_of[C->cells[k].dual] = (uint32_t)k;
     }
     jw_puts(f, "  \"subdivision\": {\n    \"cells\": [");
     for (size_t c = 0; c < S->ncells; c++) {
         const tp_subdiv_cell *sc = &S->cells[c];
-        size_t dual = dual_of ? dual_of[c] : c < C->ncells ? c : SIZE_MAX;
+        size_t dual = !dual_of ? (c < C->ncells ? c : SIZE_MAX)
+                      : c < ndual && dual_of[c] != UINT32_MAX ? dual_of[c] : SIZE_MAX;
         jw_puts(f, c ? ",\n      " : "\n      ");
         jw_puts(f, "{\"points\": ");
         put_idx_vec(f, sc->pts, sc->npts);
@@ -432,7 +452,7 @@ static bool write_subdivision(jw *f, const tp_trop *T)
     }
     jw_puts(f, S->ncells ? "\n    ],\n" : "],\n");
     jw_puts(f, "    \"unused\": ");
-    put_idx_vec(f, S->unused, S->nunused);
+    put_size_vec(f, S->unused, S->nunused);
     jw_puts(f, "\n  },\n");
     free(dual_of);
     qvec_free(ipt, n);

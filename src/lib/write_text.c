@@ -128,14 +128,14 @@ static void sb_ivec(sbuf *b, const int64_t *v, size_t n)
 }
 
 /* "v0 v3 v5" style index lists; "-" when empty. */
-static void sb_idx(sbuf *b, const char *prefix, const size_t *v, size_t n)
+static void sb_idx(sbuf *b, const char *prefix, const uint32_t *v, size_t n)
 {
     if (n == 0) {
         sb_puts(b, "-");
         return;
     }
     for (size_t k = 0; k < n; k++)
-        sb_printf(b, "%s%s%zu", k ? " " : "", prefix, v[k]);
+        sb_printf(b, "%s%s%" PRIu32, k ? " " : "", prefix, v[k]);
 }
 
 /* ---------------------------------------------------------------- tables */
@@ -363,7 +363,7 @@ static tp_status write_subdivision(FILE *f, const tp_trop *T, tp_error *err)
     /* When the complex took the facet normals (tp_complex_build_move), a maximal cell's
      * normal is the only vertex of its dual cell, already in the output convention. */
     const tp_complex *C = &T->complex;
-    size_t *vert_of = NULL;
+    uint32_t *vert_of = NULL; /* vertex indices: fewer than 2^32 (complex.h) */
     if (H->nlower && !H->lower[0].w) {
         vert_of = malloc((S->ncells ? S->ncells : 1) * sizeof *vert_of);
         if (!vert_of) {
@@ -371,7 +371,7 @@ static tp_status write_subdivision(FILE *f, const tp_trop *T, tp_error *err)
             return oom(err);
         }
         for (size_t c = 0; c < S->ncells; c++)
-            vert_of[c] = SIZE_MAX;
+            vert_of[c] = UINT32_MAX;
         for (size_t k = 0; k < C->ncells; k++) {
             const tp_complex_cell *cc = &C->cells[k];
             if (cc->dual < S->ncells && S->cells[cc->dual].dim == H->dim && cc->nverts == 1)
@@ -390,8 +390,8 @@ static tp_status write_subdivision(FILE *f, const tp_trop *T, tp_error *err)
         if (sc->dim == H->dim && sc->nlower == 1 && sc->lower[0] < H->nlower) {
             if (H->lower[sc->lower[0]].w)
                 sb_qvec(&cols[3], H->lower[sc->lower[0]].w, n, T->max);
-            else if (vert_of && vert_of[c] != SIZE_MAX)
-                sb_qvec(&cols[3], C->verts + vert_of[c] * n, n, false);
+            else if (vert_of && vert_of[c] != UINT32_MAX)
+                sb_qvec(&cols[3], C->verts + (size_t)vert_of[c] * n, n, false);
         }
         table_row(&t, cols);
     }

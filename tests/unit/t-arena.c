@@ -107,26 +107,44 @@ static void test_alloc(void)
     bool ok = true;
     tp_rng r;
     tp_rng_seed(&r, tp_test_seed() + 12);
-    /* pieces are 8-byte aligned, disjoint and keep what was written */
+    /* pieces are 8-byte aligned (4-byte for tp_arena_alloc4, mixed in at random),
+     * disjoint and keep what was written */
     unsigned char **p = malloc(20000 * sizeof *p);
     size_t *len = malloc(20000 * sizeof *len);
     for (int i = 0; i < 20000; i++) {
         len[i] = (size_t)tp_rng_range(&r, 0, i % 100 == 0 ? 3000000 : 200);
-        p[i] = tp_arena_alloc(&A, len[i]);
-        ok = ok && p[i] && ((uintptr_t)p[i] & 7) == 0;
+        bool four = tp_rng_range(&r, 0, 1) == 1;
+        p[i] = four ? tp_arena_alloc4(&A, len[i]) : tp_arena_alloc(&A, len[i]);
+        ok = ok && p[i] && ((uintptr_t)p[i] & (four ? 3 : 7)) == 0;
         if (p[i])
             memset(p[i], i & 0xff, len[i]);
     }
     tp_check(ok, "arena pieces: allocated and aligned");
     int bad = 0;
-    for (int i = 0; i < 20000; i++)
+    for (int i = 0; i < 20000; i++) {
         for (size_t k = 0; k < len[i]; k += 97)
             bad += p[i][k] != (unsigned char)(i & 0xff);
+        if (len[i])
+            bad += p[i][len[i] - 1] != (unsigned char)(i & 0xff);
+    }
     tp_check(bad == 0, "arena pieces overlap (%d bytes overwritten)", bad);
     free(p);
     free(len);
     tp_arena_free(&A);
     tp_check(tp_arena_alloc(&A, SIZE_MAX - 4) == NULL, "absurd size refused");
+    tp_arena_free(&A);
+
+    /* a first block of 4 (mod 8) bytes, filled by a 4-aligned piece: an 8-aligned
+     * piece then starts a new block (the sanitizer build sees any overrun) */
+    unsigned char *q4 = tp_arena_alloc4(&A, 1000004);
+    unsigned char *q8 = tp_arena_alloc(&A, 8);
+    tp_check(q4 && q8 && ((uintptr_t)q8 & 7) == 0 && (q8 >= q4 + 1000004 || q8 + 8 <= q4),
+             "4-aligned block then an 8-aligned piece");
+    if (q4 && q8) {
+        memset(q4, 1, 1000004);
+        memset(q8, 2, 8);
+        tp_check(q4[1000003] == 1 && q8[0] == 2, "4-aligned block: contents");
+    }
     tp_arena_free(&A);
 
     /* take: the blocks of one arena join another */

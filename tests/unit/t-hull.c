@@ -67,7 +67,7 @@ static bool plane_through(const tp_points *P, const size_t *idx, mpq_t *w, mpq_t
 
 typedef struct {
     size_t npts;
-    size_t pts[64];
+    uint32_t pts[64]; /* the hull's list type (tp_hull_facet.pts) */
 } ptset;
 
 /* Brute-force lower facets (full-dimensional inputs with <= 64 points). */
@@ -104,7 +104,7 @@ static size_t brute_lower(const tp_points *P, ptset *out, size_t maxout)
                 if (s2 < 0)
                     below = true;
                 else if (s2 == 0)
-                    s.pts[s.npts++] = p;
+                    s.pts[s.npts++] = (uint32_t)p;
             }
             if (!below) {
                 bool seen = false;
@@ -232,7 +232,7 @@ static void test_random_vs_brute(void)
                 bool found = false;
                 for (size_t k = 0; k < nb && !found; k++)
                     found = bf[k].npts == H.lower[f].npts &&
-                            memcmp(bf[k].pts, H.lower[f].pts, bf[k].npts * sizeof(size_t)) == 0;
+                            memcmp(bf[k].pts, H.lower[f].pts, bf[k].npts * sizeof *bf[k].pts) == 0;
                 tp_check(found, "it %ld: hull facet %zu not found by brute force", it, f);
             }
         }
