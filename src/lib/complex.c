@@ -14,7 +14,6 @@
  * the primitive integer vector along Phi(q_e - p), q_e and p relative interior
  * points of C_e and C. The cell is balanced when sum_e weight_e * u_e = 0.
  */
-#define _GNU_SOURCE /* qsort_r */
 #include "trope/complex.h"
 
 #include <stdarg.h>
@@ -461,8 +460,8 @@ static char *initial_form(const tp_points *P, const uint32_t *pts, size_t npts,
 
 /* ---- sorting with permutations ------------------------------------------------ */
 
-/* Sorting sorts 32-bit indices (qsort_r: glibc's merge sort takes a scratch copy of
- * the array, so small elements keep that small), then moves the rows in place. */
+/* Sorting sorts 32-bit indices in place (sort_idx below: no scratch copy, which at
+ * a million cells was the peak of the run), then moves the rows in place. */
 typedef struct {
     const mpq_t *q;  /* rows of rationals, or NULL */
     const mpz_t *z;  /* rows of integers, or NULL */
@@ -480,6 +479,102 @@ static int cmp_row_r(const void *x, const void *y, void *ctx)
             return c < 0 ? -1 : 1;
     }
     return 0;
+}
+
+/* Ties broken by the index: the order is total, so the result is the one a stable
+ * sort of 0..n-1 gives, whatever the algorithm. */
+typedef int (*cmp_r_fn)(const void *, const void *, void *);
+
+static inline int cmp_idx(uint32_t a, uint32_t b, cmp_r_fn cmp, void *ctx)
+{
+    int c = cmp(&a, &b, ctx);
+    return c ? c : (a > b) - (a < b);
+}
+
+static void sift_down(uint32_t *a, size_t root, size_t n, cmp_r_fn cmp, void *ctx)
+{
+    for (;;) {
+        size_t c = 2 * root + 1;
+        if (c >= n)
+            return;
+        if (c + 1 < n && cmp_idx(a[c], a[c + 1], cmp, ctx) < 0)
+            c++;
+        if (cmp_idx(a[root], a[c], cmp, ctx) >= 0)
+            return;
+        uint32_t t = a[root];
+        a[root] = a[c];
+        a[c] = t;
+        root = c;
+    }
+}
+
+/* Introsort: quicksort on the median of three, insertion sort for short ranges,
+ * heapsort when the recursion gets deep (O(n log n) always, in place). */
+static void sort_idx_depth(uint32_t *a, size_t n, cmp_r_fn cmp, void *ctx, int depth)
+{
+    while (n > 16) {
+        if (depth-- == 0) {
+            for (size_t i = n / 2; i-- > 0;)
+                sift_down(a, i, n, cmp, ctx);
+            for (size_t i = n - 1; i > 0; i--) {
+                uint32_t t = a[0];
+                a[0] = a[i];
+                a[i] = t;
+                sift_down(a, 0, i, cmp, ctx);
+            }
+            return;
+        }
+        size_t mid = n / 2;
+        if (cmp_idx(a[mid], a[0], cmp, ctx) < 0) {
+            uint32_t t = a[mid]; a[mid] = a[0]; a[0] = t;
+        }
+        if (cmp_idx(a[n - 1], a[0], cmp, ctx) < 0) {
+            uint32_t t = a[n - 1]; a[n - 1] = a[0]; a[0] = t;
+        }
+        if (cmp_idx(a[n - 1], a[mid], cmp, ctx) < 0) {
+            uint32_t t = a[n - 1]; a[n - 1] = a[mid]; a[mid] = t;
+        }
+        uint32_t pivot = a[mid];
+        size_t i = 0, j = n - 1;
+        for (;;) {
+            while (cmp_idx(a[i], pivot, cmp, ctx) < 0)
+                i++;
+            while (cmp_idx(pivot, a[j], cmp, ctx) < 0)
+                j--;
+            if (i >= j)
+                break;
+            uint32_t t = a[i];
+            a[i] = a[j];
+            a[j] = t;
+            i++;
+            j--;
+        }
+        /* a[0..j] <= pivot <= a[j+1..n-1]: recurse on the smaller side */
+        size_t left = j + 1;
+        if (left < n - left) {
+            sort_idx_depth(a, left, cmp, ctx, depth);
+            a += left;
+            n -= left;
+        } else {
+            sort_idx_depth(a + left, n - left, cmp, ctx, depth);
+            n = left;
+        }
+    }
+    for (size_t i = 1; i < n; i++) {
+        uint32_t x = a[i];
+        size_t k = i;
+        for (; k > 0 && cmp_idx(a[k - 1], x, cmp, ctx) > 0; k--)
+            a[k] = a[k - 1];
+        a[k] = x;
+    }
+}
+
+static void sort_idx(uint32_t *a, size_t n, cmp_r_fn cmp, void *ctx)
+{
+    int depth = 2;
+    for (size_t m = n; m > 1; m >>= 1)
+        depth += 2;
+    sort_idx_depth(a, n, cmp, ctx, depth);
 }
 
 static int cmp_u32(const void *a, const void *b)
@@ -536,7 +631,7 @@ static int cmp_cell(const void *x, const void *y)
 
 /* Move row i of the m rows at base (rowbytes each) to row to[i], in place; `to` is
  * destroyed (left the identity). tmp holds one row. */
-static void permute_rows(void *base, size_t rowbytes, size_t *to, size_t m, void *tmp)
+static void permute_rows(void *base, size_t rowbytes, uint32_t *to, size_t m, void *tmp)
 {
     unsigned char *b = base;
     for (size_t i = 0; i < m; i++)
@@ -546,7 +641,7 @@ static void permute_rows(void *base, size_t rowbytes, size_t *to, size_t m, void
             memcpy(b + j * rowbytes, b + i * rowbytes, rowbytes);
             memcpy(b + i * rowbytes, tmp, rowbytes);
             to[i] = to[j];
-            to[j] = j;
+            to[j] = (uint32_t)j;
         }
 }
 
@@ -936,7 +1031,8 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
     C->dim = (int)n - 1;
     tp_status st = TP_OK;
 
-    size_t *vmap = NULL, *rmap = NULL, *eoff = NULL;
+    size_t *rmap = NULL, *eoff = NULL;
+    uint32_t *vmap = NULL; /* vertex and ray maps: fewer than 2^32 of each */
     uint32_t *eids = NULL; /* subdivision cell indices: fewer than 2^32 */
     bool *ray_used = NULL, *mark = NULL;
     uint32_t *ord = NULL;
@@ -1268,9 +1364,9 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
             ord[v] = (uint32_t)v; /* m < 2^32: the subdivision's facet limit */
         rowctx rc = {pass == 0 ? (const mpq_t *)C->verts : NULL,
                      pass == 0 ? NULL : (const mpz_t *)C->rays, n};
-        qsort_r(ord, m, sizeof *ord, cmp_row_r, &rc);
+        sort_idx(ord, m, cmp_row_r, &rc);
         for (size_t k = 0; k < m; k++)
-            vmap[ord[k]] = k;
+            vmap[ord[k]] = (uint32_t)k;
         tp_big_free(ord);
         ord = NULL;
         for (size_t i = 0; i < C->ncells; i++) {
@@ -1278,12 +1374,12 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
             uint32_t *lst = pass == 0 ? c->verts : tp_complex_cell_rays(c);
             size_t cnt = pass == 0 ? c->nverts : c->nrays;
             for (size_t t = 0; t < cnt; t++)
-                lst[t] = (uint32_t)vmap[lst[t]]; /* < m < 2^32 */
+                lst[t] = vmap[lst[t]];
             sort_small(lst, cnt);
         }
         if (pass == 0 && C->vmult) {
             /* vmult follows the vertices: permute a copy of the map first */
-            size_t *vm2 = malloc((m ? m : 1) * sizeof *vm2);
+            uint32_t *vm2 = malloc((m ? m : 1) * sizeof *vm2);
             if (!vm2) {
                 free(row);
                 st = nomem(err);
@@ -1311,7 +1407,7 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
     }
     for (size_t i = 0; i < C->ncells; i++)
         ord[i] = (uint32_t)i; /* fewer than 2^32 cells, checked above */
-    qsort_r(ord, C->ncells, sizeof *ord, cmp_cell_r, C->cells);
+    sort_idx(ord, C->ncells, cmp_cell_r, (void *)C->cells);
     for (size_t i = 0; i < C->ncells; i++) {
         if (ord[i] == i)
             continue;
