@@ -15,6 +15,7 @@
  * points of C_e and C. The cell is balanced when sum_e weight_e * u_e = 0.
  */
 #include "trope/complex.h"
+#include "idx_list.h"
 
 #include <stdarg.h>
 #include <stdint.h>
@@ -577,37 +578,6 @@ static void sort_idx(uint32_t *a, size_t n, cmp_r_fn cmp, void *ctx)
     sort_idx_depth(a, n, cmp, ctx, depth);
 }
 
-static int cmp_u32(const void *a, const void *b)
-{
-    uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
-    return (x > y) - (x < y);
-}
-
-/* Ascending sort: insertion sort for the short lists cells have, qsort beyond. */
-static void sort_small(uint32_t *v, size_t m)
-{
-    if (m > 16) {
-        qsort(v, m, sizeof *v, cmp_u32);
-        return;
-    }
-    for (size_t i = 1; i < m; i++) {
-        uint32_t x = v[i];
-        size_t k = i;
-        for (; k > 0 && v[k - 1] > x; k--)
-            v[k] = v[k - 1];
-        v[k] = x;
-    }
-}
-
-static int cmp_list(const uint32_t *a, size_t na, const uint32_t *b, size_t nb)
-{
-    size_t m = na < nb ? na : nb;
-    for (size_t i = 0; i < m; i++)
-        if (a[i] != b[i])
-            return a[i] < b[i] ? -1 : 1;
-    return (na > nb) - (na < nb);
-}
-
 static int cmp_cell(const void *x, const void *y);
 
 static int cmp_cell_r(const void *x, const void *y, void *ctx)
@@ -621,10 +591,11 @@ static int cmp_cell(const void *x, const void *y)
     const tp_complex_cell *a = x, *b = y;
     if (a->dim != b->dim)
         return a->dim < b->dim ? -1 : 1;
-    int c = cmp_list(a->verts, a->nverts, b->verts, b->nverts);
+    int c = tp_idx_cmp_lists(a->verts, a->nverts, b->verts, b->nverts);
     if (c)
         return c;
-    return cmp_list(tp_complex_cell_rays(a), a->nrays, tp_complex_cell_rays(b), b->nrays);
+    return tp_idx_cmp_lists(tp_complex_cell_rays(a), a->nrays, tp_complex_cell_rays(b),
+                            b->nrays);
 }
 
 /* ---- build ------------------------------------------------------------------------ */
@@ -1375,7 +1346,7 @@ static tp_status build(tp_complex *C, const tp_subdiv *S, tp_subdiv *take,
             size_t cnt = pass == 0 ? c->nverts : c->nrays;
             for (size_t t = 0; t < cnt; t++)
                 lst[t] = vmap[lst[t]];
-            sort_small(lst, cnt);
+            tp_idx_sort(lst, cnt);
         }
         if (pass == 0 && C->vmult) {
             /* vmult follows the vertices: permute a copy of the map first */

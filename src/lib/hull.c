@@ -5,6 +5,7 @@
  * output canonical lives here, so both engines give identical tp_hull objects.
  */
 #include "hull_internal.h"
+#include "idx_list.h"
 
 #include <stdlib.h>
 #include <string.h>
@@ -47,33 +48,6 @@ void tp_hull_clear(tp_hull *H)
     tp_hull_init(H);
 }
 
-static int cmp_u32(const void *a, const void *b)
-{
-    uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
-    return (x > y) - (x < y);
-}
-
-/* Ascending sort: insertion sort for short lists, qsort beyond. */
-static void sort_small(uint32_t *v, size_t m)
-{
-    size_t k = 1;
-    while (k < m && v[k - 1] < v[k])
-        k++;
-    if (k >= m)
-        return; /* engines often hand lists over sorted */
-    if (m > 16) {
-        qsort(v, m, sizeof *v, cmp_u32);
-        return;
-    }
-    for (size_t i = 1; i < m; i++) {
-        uint32_t x = v[i];
-        size_t k = i;
-        for (; k > 0 && v[k - 1] > x; k--)
-            v[k] = v[k - 1];
-        v[k] = x;
-    }
-}
-
 /* Copy the engine's size_t list into a 32-bit one, sorted; false if an index does not
  * fit (then dst is partly written). */
 static bool narrow_sorted(uint32_t *dst, const size_t *pts, size_t npts)
@@ -83,7 +57,7 @@ static bool narrow_sorted(uint32_t *dst, const size_t *pts, size_t npts)
             return false;
         dst[i] = (uint32_t)pts[i];
     }
-    sort_small(dst, npts);
+    tp_idx_sort(dst, npts);
     return true;
 }
 
@@ -438,25 +412,17 @@ void tp_hull_reduce_z(const tp_hull *H, mpz_t *v)
 
 /* ---- canonical form ------------------------------------------------------------- */
 
-static int cmp_ptlist(const uint32_t *a, size_t na, const uint32_t *b, size_t nb)
-{
-    size_t m = na < nb ? na : nb;
-    for (size_t i = 0; i < m; i++)
-        if (a[i] != b[i])
-            return a[i] < b[i] ? -1 : 1;
-    return (na > nb) - (na < nb);
-}
 
 static int cmp_facet(const void *x, const void *y)
 {
     const tp_hull_facet *a = x, *b = y;
-    return cmp_ptlist(a->pts, a->npts, b->pts, b->npts);
+    return tp_idx_cmp_lists(a->pts, a->npts, b->pts, b->npts);
 }
 
 static int cmp_side(const void *x, const void *y)
 {
     const tp_hull_side *a = x, *b = y;
-    return cmp_ptlist(a->pts, a->npts, b->pts, b->npts);
+    return tp_idx_cmp_lists(a->pts, a->npts, b->pts, b->npts);
 }
 
 tp_status tp_hull_finish(tp_hull *H, tp_error *err)

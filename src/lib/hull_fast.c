@@ -1174,8 +1174,8 @@ static tp_status emit(fh *F, tp_hull *H, tp_error *err)
     size_t nstar = 0, capstar = 0;
     struct pair *cp = NULL, *sp = NULL;
     size_t ncp = 0, capcp = 0, nsp = 0, capsp = 0;
-    size_t *cstart = NULL, *xstart = NULL, *vstart = NULL, *sstart = NULL, *ystart = NULL;
-    int32_t *corder = NULL, *xpts = NULL, *vside = NULL, *spts = NULL, *ypts = NULL;
+    size_t *cstart = NULL, *xstart = NULL, *vstart = NULL, *sstart = NULL;
+    int32_t *corder = NULL, *xpts = NULL, *vside = NULL, *spts = NULL;
     struct bface *bf = NULL;
     size_t nbf = 0, capbf = 0, ngroups = 0, ncell = 0;
     size_t *gstart = NULL;
@@ -1489,12 +1489,10 @@ out:
     free(xstart);
     free(vstart);
     free(sstart);
-    free(ystart);
     free(corder);
     free(xpts);
     free(vside);
     free(spts);
-    free(ypts);
     free(bf);
     free(gstart);
     return st;

@@ -125,6 +125,16 @@ void tp_points_mark_dups(tp_points *P)
     size_t m = P->count, n = P->n;
     if (!P->dup)
         return;
+    if (n == 0) {
+        /* no exponents: every point is the same monomial; keep the minimum */
+        size_t best = 0;
+        for (size_t k = 1; k < m; k++)
+            if (cmp_point(P, k, best) < 0)
+                best = k;
+        for (size_t k = 0; k < m; k++)
+            P->dup[k] = k != best;
+        return;
+    }
     /* exponents strictly increasing in input order (generated grids): nothing to do */
     bool increasing = true;
     for (size_t k = 1; k < m && increasing; k++) {
@@ -134,18 +144,9 @@ void tp_points_mark_dups(tp_points *P)
             j++;
         increasing = j < n && x[j] < y[j];
     }
-    if (increasing || n == 0) {
+    if (increasing) {
         for (size_t k = 0; k < m; k++)
-            P->dup[k] = n == 0 && k > 0;
-        if (n == 0 && m > 1) {
-            /* no exponents: every point is the same monomial; keep the minimum */
-            size_t best = 0;
-            for (size_t k = 1; k < m; k++)
-                if (cmp_point(P, k, best) < 0)
-                    best = k;
-            for (size_t k = 0; k < m; k++)
-                P->dup[k] = k != best;
-        }
+            P->dup[k] = false;
         return;
     }
     size_t cap = 16;

@@ -9,6 +9,7 @@
  * proportional to the sum over cells of the facet degrees of their points.
  */
 #include "trope/subdiv.h"
+#include "idx_list.h"
 
 #include <stdint.h>
 #include <stdlib.h>
@@ -266,28 +267,6 @@ static bool pindex_build(pindex *ix, const tp_hull *H)
     return true;
 }
 
-static int cmp_u32(const void *a, const void *b)
-{
-    uint32_t x = *(const uint32_t *)a, y = *(const uint32_t *)b;
-    return (x > y) - (x < y);
-}
-
-/* Ascending sort: insertion sort for short lists, qsort beyond. */
-static void sort_small(uint32_t *v, size_t m)
-{
-    if (m > 16) {
-        qsort(v, m, sizeof *v, cmp_u32);
-        return;
-    }
-    for (size_t i = 1; i < m; i++) {
-        uint32_t x = v[i];
-        size_t k = i;
-        for (; k > 0 && v[k - 1] > x; k--)
-            v[k] = v[k - 1];
-        v[k] = x;
-    }
-}
-
 /* Fill the lower / side facet lists of cell ci: the facets containing every point of
  * it, one piece of the arena (sides right after lower). `count` is a zeroed scratch
  * array over facet ids, `touched` a scratch list; both left clean. */
@@ -332,8 +311,8 @@ static bool set_containing(builder *b, size_t ci, const tp_hull *H, const pindex
         }
         count[f] = 0;
     }
-    sort_small(lower, c->nlower);
-    sort_small(sides, c->nsides);
+    tp_idx_sort(lower, c->nlower);
+    tp_idx_sort(sides, c->nsides);
     return true;
 }
 
@@ -352,11 +331,7 @@ static int cmp_cell(const void *x, const void *y)
     const tp_subdiv_cell *a = x, *b = y;
     if (a->dim != b->dim)
         return a->dim > b->dim ? -1 : 1;
-    size_t m = a->npts < b->npts ? a->npts : b->npts;
-    for (size_t i = 0; i < m; i++)
-        if (a->pts[i] != b->pts[i])
-            return a->pts[i] < b->pts[i] ? -1 : 1;
-    return (a->npts > b->npts) - (a->npts < b->npts);
+    return tp_idx_cmp_lists(a->pts, a->npts, b->pts, b->npts);
 }
 
 /* Return the free pages inside malloc's heap to the system after a big run (a hull of
